@@ -1,0 +1,1 @@
+"""Loading: file -> Source -> (plain data, spans) -> validated record."""

@@ -1,0 +1,214 @@
+"""A source folder: site settings, reagents, indicators, glossary and
+method records, each loaded with positions.
+
+Layout (``docs/record-format.md``)::
+
+    SOURCE/site.yaml           site settings
+    SOURCE/glossary.yaml       optional: term -> definition
+    SOURCE/safety-rules.yaml   optional: the lab's own safety rules
+    SOURCE/records/*.yaml      method records (id = file name)
+    SOURCE/reagents/*.yaml     reagent records
+    SOURCE/indicators/*.yaml   indicator records
+"""
+
+from __future__ import annotations
+
+__all__ = ["Collection", "find_root", "load_collection", "load_paths"]
+
+from collections.abc import Iterable, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ..errors import Finding, Severity, Span
+from ..model import Indicator, MethodRecord, Reagent, SiteConfig
+from .records import Loaded, load_text
+from .source import Source, SourceProblem, read_source
+from .spans import YamlProblem, parse_yaml
+
+KINDS: dict[str, type[Any]] = {
+    "records": MethodRecord,
+    "reagents": Reagent,
+    "indicators": Indicator,
+}
+
+
+@dataclass
+class Collection:
+    """Everything loaded from one source folder.
+
+    Attributes:
+        root: the source folder.
+        site: site settings (None if site.yaml failed to load).
+        methods / reagents / indicators: id -> Loaded, sorted by id.
+        glossary: term -> definition.
+        sources: every file read, by shown path (for the caret printer).
+        findings: problems found while loading.
+    """
+
+    root: Path
+    site: Loaded | None = None
+    methods: dict[str, Loaded] = field(default_factory=dict)
+    reagents: dict[str, Loaded] = field(default_factory=dict)
+    indicators: dict[str, Loaded] = field(default_factory=dict)
+    glossary: dict[str, str] = field(default_factory=dict)
+    glossary_source: Source | None = None
+    safety_rules_source: Source | None = None
+    sources: dict[str, Source] = field(default_factory=dict)
+    findings: list[Finding] = field(default_factory=list)
+
+
+def find_root(path: Path) -> Path | None:
+    """The source folder holding ``path``: the nearest folder, from ``path``
+    upward, that has a site.yaml."""
+    p = path.resolve()
+    for candidate in (p, *p.parents) if p.is_dir() else p.parents:
+        if (candidate / "site.yaml").is_file():
+            return candidate
+    return None
+
+
+def _shown(path: Path, cwd: Path) -> str:
+    try:
+        return str(path.resolve().relative_to(cwd))
+    except ValueError:
+        return str(path)
+
+
+def _read(path: Path, cwd: Path, col: Collection) -> Source | None:
+    src = read_source(path, _shown(path, cwd))
+    if isinstance(src, SourceProblem):
+        col.findings.append(
+            Finding(src.rule, Severity.ERROR, src.message, Span(_shown(path, cwd), src.line, src.col))
+        )
+        return None
+    col.sources[src.path] = src
+    return src
+
+
+def _files(folder: Path) -> list[Path]:
+    if not folder.is_dir():
+        return []
+    return sorted(p for p in folder.iterdir() if p.suffix in {".yaml", ".yml"} and p.is_file())
+
+
+def load_collection(root: Path, only: Iterable[Path] | None = None, cwd: Path | None = None) -> Collection:
+    """Load a source folder.
+
+    Args:
+        root: the source folder (holds site.yaml).
+        only: when given, only these method record files are loaded as
+            methods (reagents and indicators are always loaded, since the
+            methods refer to them).
+        cwd: paths in findings are shown relative to this folder.
+    """
+    cwd = (cwd or Path.cwd()).resolve()
+    col = Collection(root=root)
+    site = root / "site.yaml"
+    src = _read(site, cwd, col)
+    if src is not None:
+        loaded, findings = load_text(SiteConfig, src)
+        col.site = loaded
+        col.findings.extend(findings)
+    _load_glossary(root, cwd, col)
+    sr = root / "safety-rules.yaml"
+    if sr.is_file():
+        col.safety_rules_source = _read(sr, cwd, col)
+    only_set = {p.resolve() for p in only} if only is not None else None
+    for folder, model in KINDS.items():
+        target = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}[
+            folder
+        ]
+        files = _files(root / folder)
+        if folder == "records" and only_set is not None:
+            files = [f for f in files if f.resolve() in only_set]
+        _load_kind(files, model, target, cwd, col)
+    return col
+
+
+def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
+    """Load the collection that the given paths (folders or record files)
+    belong to. Paths in different source folders are not supported."""
+    cwd = (cwd or Path.cwd()).resolve()
+    roots = {find_root(p) for p in paths}
+    if None in roots or len(roots) != 1:
+        raise FileNotFoundError(
+            "no site.yaml found above "
+            + ", ".join(str(p) for p in paths)
+            + "; point at a source folder (the one holding site.yaml)"
+        )
+    root = roots.pop()
+    assert root is not None
+    files: list[Path] = []
+    whole = False
+    for p in paths:
+        if p.is_dir():
+            whole = True
+        else:
+            files.append(p)
+    return load_collection(root, None if whole else files, cwd)
+
+
+def _load_kind(
+    files: list[Path], model: type[Any], target: dict[str, Loaded], cwd: Path, col: Collection
+) -> None:
+    for path in files:
+        src = _read(path, cwd, col)
+        if src is None:
+            continue
+        loaded, findings = load_text(model, src)
+        col.findings.extend(findings)
+        if loaded is None:
+            continue
+        rid = loaded.record.id
+        if rid != path.stem:
+            col.findings.append(
+                Finding(
+                    "id-mismatch",
+                    Severity.ERROR,
+                    f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
+                    loaded.span("id"),
+                )
+            )
+            continue
+        if rid in target:
+            first = target[rid].source.path
+            col.findings.append(
+                Finding(
+                    "duplicate-id",
+                    Severity.ERROR,
+                    f"id {rid!r} is already used by {first}",
+                    loaded.span("id"),
+                )
+            )
+            continue
+        target[rid] = loaded
+
+
+def _load_glossary(root: Path, cwd: Path, col: Collection) -> None:
+    path = root / "glossary.yaml"
+    if not path.is_file():
+        return
+    src = _read(path, cwd, col)
+    if src is None:
+        return
+    col.glossary_source = src
+    try:
+        parsed = parse_yaml(src.text)
+    except YamlProblem as p:
+        col.findings.append(Finding(p.rule, Severity.ERROR, p.message, Span(src.path, p.line, p.col)))
+        return
+    data = parsed.data
+    if not isinstance(data, dict) or not all(
+        isinstance(k, str) and isinstance(v, str) for k, v in data.items()
+    ):
+        col.findings.append(
+            Finding(
+                "bad-glossary",
+                Severity.ERROR,
+                "glossary.yaml maps each term to its definition (text)",
+                Span(src.path, 1, 1),
+            )
+        )
+        return
+    col.glossary = dict(sorted(data.items(), key=lambda kv: kv[0].lower()))

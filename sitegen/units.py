@@ -1,0 +1,108 @@
+"""Quantities with units, as method owners write them ("25.00 mL").
+
+pint does the parsing and the conversion; this module only adds what a
+record needs on top: the text as written (for the page), the number of
+decimals written (a worked example's stated rounding) and a check of the
+dimension each field expects.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "DIMENSIONS",
+    "Measure",
+    "UnitError",
+    "parse_measure",
+    "ureg",
+]
+
+import functools
+import re
+from dataclasses import dataclass
+
+import pint
+
+# One registry for the whole process: pint quantities from different
+# registries cannot be combined.
+ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+ureg.define("percent = 0.01 = %")
+ureg.define("permille = 0.001 = ‰")
+ureg.define("ppm = 1e-6")
+
+#: Field kinds and the base unit values are normalised to. The key is the
+#: word used in schema descriptions and messages.
+DIMENSIONS: dict[str, str] = {
+    "volume": "mL",
+    "mass": "g",
+    "concentration": "mol/L",
+    "potential": "V",
+    "temperature": "K",
+    "molar_mass": "g/mol",
+    "mass_fraction": "percent",
+    "mass_concentration": "mg/L",
+    "dimensionless": "",
+}
+
+_NUMBER = re.compile(r"^\s*([+-]?(?:\d+(?:\.(\d*))?|\.(\d+))(?:[eE][+-]?\d+)?)\s*(.*?)\s*$")
+
+
+class UnitError(ValueError):
+    """A quantity that cannot be read or has the wrong dimension."""
+
+
+@dataclass(frozen=True)
+class Measure:
+    """A number with a unit, as written in a record.
+
+    Attributes:
+        text: the quantity as written, e.g. ``"25.00 mL"``.
+        value: the magnitude converted to the kind's base unit (see
+            :data:`DIMENSIONS`), e.g. 25.0 for mL.
+        unit: that base unit.
+        decimals: decimals written in the number (``"25.00 mL"`` -> 2),
+            used as the stated rounding of a result.
+        kind: the field kind (``"volume"``, ...).
+    """
+
+    text: str
+    value: float
+    unit: str
+    decimals: int
+    kind: str
+
+    def __str__(self) -> str:
+        return self.text
+
+
+@functools.lru_cache(maxsize=4096)
+def parse_measure(text: str | int | float, kind: str) -> Measure:
+    """Read ``"25.00 mL"`` as a :class:`Measure` of the given kind.
+
+    Raises:
+        UnitError: the text is not a number followed by a unit of the
+            dimension that ``kind`` needs.
+    """
+    if kind not in DIMENSIONS:
+        raise KeyError(kind)
+    base = DIMENSIONS[kind]
+    raw = str(text).strip()
+    m = _NUMBER.match(raw)
+    if not m:
+        raise UnitError(f"{raw!r} is not a number followed by a unit (e.g. '25.00 mL')")
+    number, dec_a, dec_b, unit_text = m.group(1), m.group(2), m.group(3), m.group(4)
+    mantissa = number.split("e")[0].split("E")[0]
+    decimals = len(mantissa.split(".")[1]) if "." in mantissa else 0
+    del dec_a, dec_b
+    unit_text = unit_text.replace("°C", "degC").replace("µ", "u").replace("μ", "u")
+    if unit_text in {"M"}:
+        unit_text = "mol/L"
+    if unit_text == "" and base not in {"", "percent"}:
+        raise UnitError(f"{raw!r} has no unit; write it with one, e.g. '{number} {base}'")
+    try:
+        unit = ureg.Unit(unit_text) if unit_text else ureg.dimensionless
+        q = ureg.Quantity(float(number), unit)
+        value = float(q.to(base).magnitude) if base else float(q.to("").magnitude)
+    except (pint.errors.PintError, AttributeError, TypeError, ValueError) as exc:
+        want = f"a {kind.replace('_', ' ')} unit such as '{base}'" if base else "no unit"
+        raise UnitError(f"{raw!r}: unit {unit_text!r} is not {want}") from exc
+    return Measure(text=raw, value=value, unit=base, decimals=decimals, kind=kind)
