@@ -1,0 +1,1 @@
+"""The checker: small named rules over loaded records and their analysis."""

@@ -1,0 +1,3 @@
+"""Rule modules, imported in this one order (the order rules run in)."""
+
+from . import links  # noqa: F401  (registers rules)

@@ -1,0 +1,53 @@
+"""Run the enabled rules over a loaded collection."""
+
+from __future__ import annotations
+
+__all__ = ["run_rules"]
+
+from collections.abc import Iterable, Mapping
+from typing import Any
+
+from ..errors import Finding, Severity, sort_findings
+from . import rules as _rules  # noqa: F401  (registers the rules)
+from .registry import RULES, Context, Settings
+
+
+def run_rules(
+    collection: Any,
+    analyses: Mapping[str, Any],
+    settings: Settings | None = None,
+    enabled: Iterable[str] | None = None,
+) -> list[Finding]:
+    """Every finding of the enabled rules (all rules by default), sorted.
+
+    Under ``settings.strict`` warnings are reported as errors.
+
+    Raises:
+        KeyError: an enabled rule id is unknown (the message lists the
+            known ids).
+    """
+    settings = settings or Settings()
+    ids = list(RULES) if enabled is None else list(enabled)
+    unknown = [i for i in ids if i not in RULES]
+    if unknown:
+        raise KeyError(f"unknown rule id(s) {', '.join(unknown)}; known: {', '.join(RULES)}")
+    ctx = Context(collection=collection, analyses=analyses, settings=settings)
+    out: list[Finding] = []
+    for rid in ids:
+        info = RULES[rid]
+        if info.scope == "method":
+            for mid, loaded in collection.methods.items():
+                out.extend(info.func(ctx, loaded, analyses.get(mid)))
+        elif info.scope == "reagent":
+            for loaded in collection.reagents.values():
+                out.extend(info.func(ctx, loaded))
+        elif info.scope == "indicator":
+            for loaded in collection.indicators.values():
+                out.extend(info.func(ctx, loaded))
+        else:
+            out.extend(info.func(ctx))
+    if settings.strict:
+        out = [
+            Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f for f in out
+        ]
+    return sort_findings(out)
