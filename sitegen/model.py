@@ -252,12 +252,16 @@ class TitrationParameters(_Strict):
     burette: Volume
     expected_volume: Volume
     indicator: Slug | None = None
-    excess_reagent: Slug | None = None
-    excess_amount: Annotated[Measure, BeforeValidator(lambda v: _measure_of(v, "mass"))] | None = (
-        None
+    excess_reagent: Slug | None = Field(
+        default=None, description="back titrations: reagent id of the reagent added in excess"
     )
     excess_concentration: Concentration | None = None
     excess_volume: Volume | None = None
+    partner_concentration: Concentration | None = Field(
+        default=None,
+        description="fixed concentration of the titrand couple's other form present from the"
+        " start, e.g. excess iodide in an iodometric flask",
+    )
 
 
 def _sample(v: object) -> Measure:
@@ -284,7 +288,12 @@ class Calculation(_Strict):
     unit: Text
     analyte_formula: Text = Field(description="formula whose molar mass the result uses")
     factor: Annotated[str, BeforeValidator(lambda v: str(v))] | None = Field(
-        default=None, description="mol analyte per mol titrant, as the method text states it"
+        default=None,
+        description="mol analyte per mol titrant (back titrations: per mol excess reagent"
+        " consumed), as the method text states it; '1/2' or '0.5'",
+    )
+    excess_factor: Annotated[str, BeforeValidator(lambda v: str(v))] | None = Field(
+        default=None, description="back titrations: mol excess reagent per mol titrant"
     )
     worked_example: WorkedExample
 
