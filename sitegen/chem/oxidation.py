@@ -1,0 +1,274 @@
+"""Average oxidation numbers per element, by the usual textbook rules.
+
+Rules, applied per adduct part (the charge belongs to the first part; water
+of crystallisation and other later parts are neutral), in priority order:
+
+1. A part made of one element: charge / number of atoms (O2, Fe: 0;
+   I3-: -1/3; O2^2-: -1).
+2. F is -1. Alkali metals are +1, alkaline-earth metals +2.
+3. H is +1, except -1 when every other element of the part is a metal or
+   boron (metal hydrides: NaH, CaH2, LiAlH4, NaBH4).
+4. O is -2, except in the presence of F (OF2: O takes the balance).
+5. Cl, Br, I are -1 unless O or a more electronegative halogen is present
+   (F > Cl > Br > I), in which case they take the balance (ICl: Cl -1).
+6. One remaining element takes the balance of the charge.
+7. Peroxides and superoxides. If, with O at -2, nothing is left to take the
+   balance and the charge does not add up (H2O2, Na2O2, KO2), O takes the
+   balance instead. If the one remaining element would exceed its group
+   maximum (e.g. S above +6 in S2O8^2-, H2SO5; Cr above +6 in CrO5), that
+   element is set to its maximum and O takes the balance - giving the
+   correct *average* for peroxo species (O in S2O8^2- = -7/4).
+8. Two or more unknown elements: the part is split into common polyatomic
+   ions of known internal oxidation states (NH4+ N -3, SO4^2- S +6, NO3-
+   N +5, CN- C +2/N -3, ...; table ``_IONS``), tried in table order with as
+   many copies as fit, until at most one unknown remains. Failing that, a
+   few metals with a single common state (Al +3, Zn +2, Ag +1, ...) are
+   fixed. If still undecidable, :class:`CannotBalance` is raised.
+
+Group maxima and fixed states are textbook knowledge (common practice),
+e.g. Greenwood & Earnshaw, Chemistry of the Elements, 2nd ed. (from memory).
+"""
+
+from __future__ import annotations
+
+__all__ = ["oxidation_numbers", "redox_changes"]
+
+from collections import Counter
+from fractions import Fraction
+from functools import lru_cache
+
+from sitegen.chem.errors import CannotBalance
+from sitegen.chem.formula import Species, parse_species
+from sitegen.chem.reaction import Reaction
+
+_ALKALI = frozenset({"Li", "Na", "K", "Rb", "Cs", "Fr"})
+_ALKALINE_EARTH = frozenset({"Be", "Mg", "Ca", "Sr", "Ba", "Ra"})
+_NONMETALS = frozenset(
+    "H He B C N O F Ne Si P S Cl Ar As Se Br Kr Te I Xe At Rn Og Ts".split()
+)
+# Halogens in decreasing electronegativity (Pauling scale; common practice).
+_HALOGENS = ("F", "Cl", "Br", "I")
+
+# Highest common oxidation state = group number (common practice, from
+# memory); used only to detect peroxo oxygen.
+_MAX_STATE = {
+    "B": 3, "C": 4, "N": 5, "Si": 4, "P": 5, "S": 6, "Cl": 7, "Ti": 4, "V": 5,
+    "Cr": 6, "Mn": 7, "Fe": 6, "Co": 4, "Ni": 4, "Cu": 3, "Zn": 2, "Ge": 4,
+    "As": 5, "Se": 6, "Br": 7, "Mo": 6, "Ru": 8, "Sn": 4, "Sb": 5, "Te": 6,
+    "I": 7, "Xe": 8, "Ce": 4, "W": 6, "Os": 8, "Pb": 4, "Bi": 5, "U": 6,
+}  # fmt: skip
+
+# Common polyatomic ions: (composition, charge, internal oxidation states).
+# Standard textbook assignments (common practice).
+_IONS: tuple[tuple[dict[str, int], int, dict[str, Fraction]], ...] = tuple(
+    (comp, q, {k: Fraction(v) for k, v in states.items()})
+    for comp, q, states in (
+        ({"N": 1, "H": 4}, 1, {"N": -3, "H": 1}),
+        ({"S": 1, "O": 4}, -2, {"S": 6, "O": -2}),
+        ({"N": 1, "O": 3}, -1, {"N": 5, "O": -2}),
+        ({"N": 1, "O": 2}, -1, {"N": 3, "O": -2}),
+        ({"P": 1, "O": 4}, -3, {"P": 5, "O": -2}),
+        ({"C": 2, "O": 4}, -2, {"C": 3, "O": -2}),
+        ({"C": 1, "O": 3}, -2, {"C": 4, "O": -2}),
+        ({"S": 1, "C": 1, "N": 1}, -1, {"S": -2, "C": 4, "N": -3}),
+        ({"C": 1, "N": 1}, -1, {"C": 2, "N": -3}),
+        ({"Cl": 1, "O": 4}, -1, {"Cl": 7, "O": -2}),
+        ({"Cl": 1, "O": 3}, -1, {"Cl": 5, "O": -2}),
+        ({"Br": 1, "O": 3}, -1, {"Br": 5, "O": -2}),
+        ({"I": 1, "O": 3}, -1, {"I": 5, "O": -2}),
+        ({"I": 1, "O": 4}, -1, {"I": 7, "O": -2}),
+        ({"Cr": 2, "O": 7}, -2, {"Cr": 6, "O": -2}),
+        ({"Cr": 1, "O": 4}, -2, {"Cr": 6, "O": -2}),
+        ({"Mn": 1, "O": 4}, -1, {"Mn": 7, "O": -2}),
+        ({"S": 2, "O": 3}, -2, {"S": 2, "O": -2}),
+        ({"S": 1, "O": 3}, -2, {"S": 4, "O": -2}),
+        ({"As": 1, "O": 4}, -3, {"As": 5, "O": -2}),
+        ({"C": 2, "H": 3, "O": 2}, -1, {"C": 0, "H": 1, "O": -2}),
+    )
+)
+
+# Metals with one common oxidation state (common practice).
+_COMMON_FIXED = {"Al": 3, "Zn": 2, "Cd": 2, "Ag": 1, "Sc": 3, "Ga": 3, "Y": 3, "La": 3}
+
+
+class _Undecidable(Exception):
+    pass
+
+
+def _fixed_states(comp: dict[str, int]) -> dict[str, Fraction]:
+    fixed: dict[str, Fraction] = {}
+    others_metallic = all(s not in _NONMETALS or s == "B" for s in comp if s != "H")
+    for sym in comp:
+        if sym == "F":
+            fixed[sym] = Fraction(-1)
+        elif sym in _ALKALI:
+            fixed[sym] = Fraction(1)
+        elif sym in _ALKALINE_EARTH:
+            fixed[sym] = Fraction(2)
+        elif sym == "H":
+            fixed[sym] = Fraction(-1) if others_metallic else Fraction(1)
+        elif sym == "O" and "F" not in comp:
+            fixed[sym] = Fraction(-2)
+        elif sym in _HALOGENS:
+            stronger = _HALOGENS[: _HALOGENS.index(sym)]
+            if "O" not in comp and not any(h in comp for h in stronger):
+                fixed[sym] = Fraction(-1)
+    # A metal hydride's H is -1 only if the "metals" are not all boron-free
+    # nonsense like a lone H; single-element parts never get here.
+    return fixed
+
+
+def _solve_with(comp: dict[str, int], charge: Fraction,
+                fixed: dict[str, Fraction]) -> dict[str, Fraction] | None:
+    """Solve when at most one element is unknown; None if more remain."""
+    unknown = [s for s in comp if s not in fixed]
+    residual = charge - sum((comp[s] * v for s, v in fixed.items() if s in comp), Fraction(0))
+    if not unknown:
+        if residual == 0:
+            return {s: fixed[s] for s in comp}
+        if "O" in comp and fixed.get("O") == -2:
+            out = {s: fixed[s] for s in comp}
+            rest = sum((comp[s] * v for s, v in fixed.items() if s != "O"), Fraction(0))
+            out["O"] = (charge - rest) / comp["O"]
+            return out
+        raise _Undecidable("the fixed oxidation states do not add up to the charge")
+    if len(unknown) > 1:
+        return None
+    x = unknown[0]
+    out = {s: fixed[s] for s in comp if s != x}
+    value = residual / comp[x]
+    cap = _MAX_STATE.get(x)
+    if cap is not None and value > cap and out.get("O") == -2:
+        # Peroxo oxygen: the element sits at its maximum, O takes the rest.
+        out[x] = Fraction(cap)
+        rest = sum((comp[s] * v for s, v in out.items() if s != "O"), Fraction(0))
+        out["O"] = (charge - rest) / comp["O"]
+        return out
+    out[x] = value
+    return out
+
+
+def _split_ions(comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction],
+                depth: int) -> dict[str, Fraction] | None:
+    """Peel off known polyatomic ions until one unknown remains.
+
+    Returns total oxidation number per element (sum over atoms) divided back
+    into averages, or None.
+    """
+    direct = _solve_with(comp, charge, fixed)
+    if direct is not None:
+        return direct
+    if depth > 4:
+        return None
+    unknown = {s for s in comp if s not in fixed}
+    for ion, q, states in _IONS:
+        if not (set(ion) & unknown):
+            continue
+        most = min(comp.get(s, 0) // n for s, n in ion.items())
+        for k in range(most, 0, -1):
+            rest = Counter(comp)
+            for s, n in ion.items():
+                rest[s] -= k * n
+            rest_comp = {s: n for s, n in rest.items() if n > 0}
+            rest_charge = charge - k * q
+            if not rest_comp:
+                if rest_charge != 0:
+                    continue
+                return dict(states)
+            # Inside the ion the states are fixed by the table; outside, the
+            # usual rules still hold for the remainder.
+            sub = _split_ions(rest_comp, rest_charge, {s: v for s, v in fixed.items()
+                                                       if s in rest_comp}, depth + 1)
+            if sub is None:
+                continue
+            total: dict[str, Fraction] = {}
+            for s in comp:
+                t = Fraction(0)
+                if s in ion:
+                    t += k * ion[s] * states[s]
+                if s in rest_comp:
+                    t += rest_comp[s] * sub[s]
+                total[s] = t / comp[s]
+            return total
+    return None
+
+
+def _part_states(comp: dict[str, int], charge: int) -> dict[str, Fraction]:
+    if len(comp) == 1:
+        (sym, n), = comp.items()
+        return {sym: Fraction(charge, n)}
+    fixed = _fixed_states(comp)
+    q = Fraction(charge)
+    out = _split_ions(comp, q, fixed, 0)
+    if out is not None:
+        return out
+    more = dict(fixed)
+    more.update({s: Fraction(v) for s, v in _COMMON_FIXED.items() if s in comp and s not in fixed})
+    out = _split_ions(comp, q, more, 0)
+    if out is not None:
+        return out
+    raise _Undecidable(
+        "more than one element without a fixed oxidation state: "
+        + ", ".join(sorted(s for s in comp if s not in more))
+    )
+
+
+@lru_cache(maxsize=4096)
+def _oxidation_numbers(species: Species) -> tuple[tuple[str, Fraction], ...]:
+    totals: Counter[str] = Counter()
+    atoms: Counter[str] = Counter()
+    for i, (mult, part) in enumerate(species.parts):
+        comp = dict(part)
+        try:
+            states = _part_states(comp, species.charge if i == 0 else 0)
+        except _Undecidable as e:
+            raise CannotBalance(f"oxidation numbers undecidable: {e}", (species.canonical,)) from None
+        for sym, n in comp.items():
+            totals[sym] += mult * n * states[sym]
+            atoms[sym] += mult * n
+    return tuple((s, Fraction(totals[s]) / atoms[s]) for s in sorted(atoms))
+
+
+def oxidation_numbers(species: Species | str) -> dict[str, Fraction]:
+    """Average oxidation number of each element in ``species``.
+
+    Args:
+        species: A :class:`Species` or its text.
+
+    Returns:
+        Element symbol -> average oxidation number (exact). The electron
+        returns an empty dict.
+
+    Raises:
+        CannotBalance: the rules cannot decide (names the species).
+    """
+    if isinstance(species, str):
+        species = parse_species(species)
+    return dict(_oxidation_numbers(species.without_state()))
+
+
+def redox_changes(reaction: Reaction) -> dict[str, object]:
+    """Which elements are oxidised and reduced in ``reaction``.
+
+    For each element the sum of (coefficient x atoms x oxidation number) is
+    compared between the sides (electrons themselves carry no element).
+
+    Returns:
+        ``{"oxidised": {element: electrons lost}, "reduced": {element:
+        electrons gained}, "electrons": total transferred}`` for the
+        reaction as written (amounts in mol per mol of reaction, exact).
+        For a half-reaction only one of the two maps is non-empty.
+    """
+    sums: dict[str, Fraction] = {}
+    for sign, terms in ((-1, reaction.left), (1, reaction.right)):
+        for t in terms:
+            if t.species.is_electron:
+                continue
+            for sym, v in oxidation_numbers(t.species).items():
+                n = t.species.composition[sym]
+                sums[sym] = sums.get(sym, Fraction(0)) + sign * t.coeff * n * v
+    oxidised = {s: d for s, d in sorted(sums.items()) if d > 0}
+    reduced = {s: -d for s, d in sorted(sums.items()) if d < 0}
+    lost = sum(oxidised.values(), Fraction(0))
+    gained = sum(reduced.values(), Fraction(0))
+    return {"oxidised": oxidised, "reduced": reduced, "electrons": max(lost, gained)}
