@@ -1,0 +1,1 @@
+"""The build: runs the stages in order and writes the site atomically."""
