@@ -1,0 +1,36 @@
+"""Quantities are read with pint; conversions checked against SI definitions."""
+
+import pytest
+
+from sitegen.units import UnitError, parse_measure
+
+
+@pytest.mark.parametrize(
+    ("text", "kind", "value", "decimals"),
+    [
+        ("25.00 mL", "volume", 25.0, 2),
+        ("0.025 L", "volume", 25.0, 3),
+        ("0.02000 mol/L", "concentration", 0.02, 5),
+        ("20 mmol/L", "concentration", 0.02, 0),
+        ("0.1 M", "concentration", 0.1, 1),
+        ("25 °C", "temperature", 298.15, 0),  # 0 °C = 273.15 K (SI brochure, 9th ed.)
+        ("1.44 V", "potential", 1.44, 2),
+        ("250 mV", "potential", 0.25, 0),
+        ("0.2500 g", "mass", 0.25, 4),
+        ("250.0 mg", "mass", 0.25, 1),
+    ],
+)
+def test_reads_and_normalises(text, kind, value, decimals):
+    m = parse_measure(text, kind)
+    assert m.value == pytest.approx(value, rel=1e-12)
+    assert m.decimals == decimals
+    assert m.text == text
+
+
+@pytest.mark.parametrize(
+    ("text", "kind"),
+    [("25 g", "volume"), ("25", "volume"), ("twenty mL", "volume"), ("1 furlong", "mass")],
+)
+def test_rejects(text, kind):
+    with pytest.raises(UnitError):
+        parse_measure(text, kind)
