@@ -183,9 +183,7 @@ class _Collector:
     def add(
         self, rule: str, path: tuple[str | int, ...], message: str, index: int | None = None
     ) -> None:
-        self.findings.append(
-            Finding(rule, Severity.ERROR, message, self.span(path, index))
-        )
+        self.findings.append(Finding(rule, Severity.ERROR, message, self.span(path, index)))
 
     def span(self, path: tuple[str | int, ...], index: int | None = None) -> Span:
         span: Span = self.loaded.span(*path)
@@ -559,18 +557,6 @@ def _excess_species(rec: MethodRecord, reagents: Mapping[str, Any]) -> str | Non
     return sup
 
 
-def _titrant_conc(rec: MethodRecord) -> float:
-    return rec.titration.titrant_concentration.value
-
-
-RESULT_FORMULAS = {
-    "mass-fraction": "w = (V - V_blank) · c · f · M / m",
-    "mass-concentration": "ρ = (V - V_blank) · c · f · M / V_s",
-    "titrant-concentration": "c = m · P / (M · f · (V - V_blank))",
-    "back": "n = f · (c_x · V_x - f_x · c · (V - V_blank)); result = n · M / sample",
-}
-
-
 def _worked_result(
     rec: MethodRecord,
     reagents: Mapping[str, Any],
@@ -579,107 +565,111 @@ def _worked_result(
     mm: tuple[float, float],
     out: _Collector,
 ) -> ResultInfo | None:
-    from .units import UnitError, parse_measure, ureg
+    from .calc import FORMULAS, result_value
+    from .units import ureg
 
     calc = rec.calculation
     we = calc.worked_example
-    V = we.titrant_volume.value  # mL
-    Vb = we.blank_volume.value
-    c = (we.titrant_concentration or rec.titration.titrant_concentration).value  # mol/L
-    M = mm[0]
-    f = float(factor)
-    sample = we.sample
+    c = (we.titrant_concentration or rec.titration.titrant_concentration).value
+    x: dict[str, float] = {
+        "V": we.titrant_volume.value,
+        "V_blank": we.blank_volume.value,
+        "c": c,
+        "f": float(factor),
+        "M": mm[0],
+    }
     inputs: list[tuple[str, str, float, str]] = [
-        ("V", "titrant volume", V, "mL"),
-        ("V_blank", "blank volume", Vb, "mL"),
+        ("V", "titrant volume", x["V"], "mL"),
+        ("V_blank", "blank volume", x["V_blank"], "mL"),
         ("c", "titrant concentration", c, "mol/L"),
-        ("f", "stoichiometric factor", f, ""),
-        ("M", f"molar mass of {calc.analyte_formula}", M, "g/mol"),
+        ("f", "stoichiometric factor", x["f"], ""),
+        ("M", f"molar mass of {calc.analyte_formula}", mm[0], "g/mol"),
     ]
     purity = 1.0
-    kind = calc.kind
+    kind = calc.kind.value
     back = rec.titration.mode is TitrationMode.BACK
-    try:
-        unit = ureg.Unit(calc.unit.replace("%", "percent"))
-    except Exception:
-        out.add("bad-unit", ("calculation", "unit"), f"unit {calc.unit!r} is not a known unit")
-        return None
-    if kind is CalculationKind.TITRANT_CONCENTRATION:
+    sample = we.sample
+    sample_path = ("calculation", "worked_example", "sample")
+    if calc.kind is CalculationKind.TITRANT_CONCENTRATION:
         if sample.unit != "g":
-            out.add("bad-unit", ("calculation", "worked_example", "sample"), "a standardisation weighs its primary standard: give the sample as a mass")
+            out.add("bad-unit", sample_path, "a standardisation weighs its primary standard:"
+                    " give the sample as a mass")
             return None
         std = next((u.ref for u in rec.reagents if u.role.value == "primary-standard"), None)
         if std and std in reagents and reagents[std].record.purity is not None:
             purity = reagents[std].record.purity.value / 100.0
-        inputs.append(("m", "mass of primary standard", sample.value, "g"))
-        inputs.append(("P", "purity of primary standard", purity, ""))
-        if V - Vb <= 0:
-            out.add("bad-value", ("calculation", "worked_example", "titrant_volume"), "titrant volume minus blank must be positive")
-            return None
-        value_base = sample.value * purity / (M * f * (V - Vb) / 1000.0)  # mol/L
-        q = ureg.Quantity(value_base, "mol/L")
-        formula = RESULT_FORMULAS["titrant-concentration"]
+        x["m"], x["P"] = sample.value, purity
+        inputs += [("m", "mass of primary standard", sample.value, "g"),
+                   ("P", "purity of primary standard", purity, "")]
+        base = "mol/L"
     else:
-        mmol_titrant = (V - Vb) * c
         if back:
             xc = rec.titration.excess_concentration
             xv = we.excess_volume or rec.titration.excess_volume
             if xc is None or xv is None or excess_factor is None:
-                out.add("missing-field", ("titration",), "a back titration needs excess_concentration, excess_volume and the excess factor")
+                out.add("missing-field", ("titration", "mode"), "a back titration needs"
+                        " excess_concentration, excess_volume and an excess factor")
                 return None
-            inputs.append(("c_x", "excess reagent concentration", xc.value, "mol/L"))
-            inputs.append(("V_x", "excess reagent volume", xv.value, "mL"))
-            inputs.append(("f_x", "mol excess reagent per mol titrant", float(excess_factor), ""))
-            mmol_analyte = f * (xc.value * xv.value - float(excess_factor) * mmol_titrant)
-            formula = RESULT_FORMULAS["back"]
-        else:
-            mmol_analyte = f * mmol_titrant
-            formula = RESULT_FORMULAS[kind.value]
-        mg = mmol_analyte * M
-        if kind is CalculationKind.MASS_FRACTION:
+            x["c_x"], x["V_x"], x["f_x"] = xc.value, xv.value, float(excess_factor)
+            inputs += [("c_x", "excess reagent concentration", xc.value, "mol/L"),
+                       ("V_x", "excess reagent volume", xv.value, "mL"),
+                       ("f_x", "mol excess reagent per mol titrant", float(excess_factor), "")]
+            kind = "back-" + kind
+        if calc.kind is CalculationKind.MASS_FRACTION:
             if sample.unit != "g":
-                out.add("bad-unit", ("calculation", "worked_example", "sample"), "a mass fraction needs the sample as a mass")
+                out.add("bad-unit", sample_path, "a mass fraction needs the sample as a mass")
                 return None
+            x["m"] = sample.value
             inputs.append(("m", "sample mass", sample.value, "g"))
-            q = ureg.Quantity(mg / 1000.0 / sample.value, "")
+            base = ""
         else:
             if sample.unit != "mL":
-                out.add("bad-unit", ("calculation", "worked_example", "sample"), "a mass concentration needs the sample as an aliquot volume")
+                out.add("bad-unit", sample_path,
+                        "a mass concentration needs the sample as an aliquot volume")
                 return None
+            x["V_s"] = sample.value
             inputs.append(("V_s", "aliquot volume", sample.value, "mL"))
-            q = ureg.Quantity(mg / sample.value, "mg/mL")
+            base = "mg/mL"
     try:
-        value = float(q.to(unit).magnitude)
-        scale = float(ureg.Quantity(1.0, q.units).to(unit).magnitude)
+        unit = ureg.Unit(calc.unit.replace("%", "percent"))
+        scale = float(ureg.Quantity(1.0, base).to(unit).magnitude)
     except Exception:
-        out.add("bad-unit", ("calculation", "unit"), f"the result is a {q.dimensionality} quantity; {calc.unit!r} does not fit")
+        out.add("bad-unit", ("calculation", "unit"),
+                f"unit {calc.unit!r} cannot express this result (a {base or 'mass fraction'}"
+                " quantity)")
+        return None
+    try:
+        value = result_value(kind, x, scale)
+    except ZeroDivisionError:
+        out.add("bad-value", ("calculation", "worked_example"),
+                "the worked example divides by zero (sample size or net titrant volume)")
         return None
     stated: float | None = None
     decimals = 0
+    number, _, stated_unit = we.result.strip().partition(" ")
     try:
-        kind_name = {"titrant-concentration": "concentration"}.get(kind.value)
-        sm = parse_measure(we.result, "dimensionless") if False else None
-        del kind_name, sm
-        number, _, su = we.result.strip().partition(" ")
-        stated_q = ureg.Quantity(float(number), ureg.Unit((su or calc.unit).replace("%", "percent")))
-        stated = float(stated_q.to(unit).magnitude)
+        su = ureg.Unit((stated_unit.strip() or calc.unit).replace("%", "percent"))
+        stated = float(ureg.Quantity(float(number), su).to(unit).magnitude)
         decimals = len(number.split(".")[1]) if "." in number else 0
-    except (ValueError, UnitError, Exception):
-        out.add("bad-value", ("calculation", "worked_example", "result"), f"the stated result {we.result!r} is not a number with the unit {calc.unit!r}")
+    except Exception:
+        out.add("bad-value", ("calculation", "worked_example", "result"),
+                f"the stated result {we.result!r} is not a number with a unit like {calc.unit!r}")
+    # "within its stated rounding": the recomputed value must round to the
+    # stated one, i.e. lie within half a unit of its last written decimal.
     agrees = stated is not None and abs(value - stated) <= 0.5 * 10.0**-decimals * (1 + 1e-9)
     return ResultInfo(
-        kind=("back-" if back else "") + kind.value,
+        kind=kind,
         value=value,
         unit=calc.unit,
         stated_text=we.result,
         stated=stated,
         decimals=decimals,
         agrees=agrees,
-        formula=formula,
+        formula=FORMULAS[kind],
         inputs=tuple(inputs),
         factor=factor,
         excess_factor=excess_factor if back else None,
-        molar_mass=M,
+        molar_mass=mm[0],
         molar_mass_u=mm[1],
         scale=scale,
         purity=purity,
@@ -756,7 +746,7 @@ def _curve(
     except Exception as exc:  # the numerics report why they failed
         out.add("curve-failed", ("couples",), f"the titration curve could not be computed: {exc}")
         return None
-    e_ref = np.array([electrodes.vs_reference(float(x), ref_key) for x in c.E_V]) if False else c.E_V - electrodes.REFERENCE_ELECTRODES[ref_key].offset_V
+    e_ref = c.E_V - electrodes.REFERENCE_ELECTRODES[ref_key].offset_V
     eq = c.equivalence_potential_V
     return CurveInfo(
         volumes_mL=np.asarray(c.volumes_mL, dtype=float),
@@ -814,7 +804,6 @@ def _indicator(
         if ok.sum() >= 2:
             vv, ee = v[ok], e[ok]
             order = np.argsort(ee)
-            rising = ee[-1] > ee[0]
             lo, hi = float(ee.min()), float(ee.max())
             if lo <= E <= hi:
                 v_end = float(np.interp(E, ee[order], vv[order]))
@@ -825,7 +814,6 @@ def _indicator(
                     f"the indicator's transition potential ({E:.3f} V vs SHE) lies outside the"
                     " computed curve"
                 )
-            del rising
             if curve.break_V is not None:
                 veq = curve.equivalence_volume_mL
                 e_lo = float(np.interp(0.999 * veq, vv, ee))
@@ -846,4 +834,4 @@ def _budget(
 ) -> Any:
     from .budget import result_budget
 
-    return result_budget(rec, result, indicator)
+    return result_budget(rec, result, reagents)
