@@ -437,14 +437,20 @@ def analyse_method(
                 )
             else:
                 electrons = int(abs(alpha) * ta[5])
-                ox_c = rec.couples.titrant if titrant_is_oxidant else rec.couples.titrand
-                red_c = rec.couples.titrand if titrant_is_oxidant else rec.couples.titrant
-                e_cell = nernst.cell_potential(
-                    ox_c.formal_potential.value, red_c.formal_potential.value
-                )
-                log_k = nernst.log10_K(
-                    electrons, ox_c.formal_potential.value, red_c.formal_potential.value, T
-                )
+                # Conditional potentials at the record's [H+]: a couple with
+                # m protons on its oxidised side shifts by (m/n)*slope*log[H+].
+                slope = nernst.nernst_slope(T)
+                log_h = math.log10(rec.conditions.hydrogen_ion.value)
+
+                def conditional(role: str) -> float:
+                    p = parts[role]
+                    e0 = getattr(rec.couples, role).formal_potential.value
+                    return e0 + slope * float(p[4]) / p[5] * log_h
+
+                e_ox = conditional("titrant" if titrant_is_oxidant else "titrand")
+                e_red = conditional("titrand" if titrant_is_oxidant else "titrant")
+                e_cell = nernst.cell_potential(e_ox, e_red)
+                log_k = nernst.log10_K(electrons, e_ox, e_red, T)
 
     # -- factor ---------------------------------------------------------------
     calc = rec.calculation
@@ -519,7 +525,10 @@ def analyse_method(
 
     budget = None
     if result is not None:
-        budget = _budget(rec, result, reagents, indicator)
+        try:
+            budget = _budget(rec, result, reagents, indicator)
+        except ModuleNotFoundError:  # TEMP until chem.uncertainty lands
+            budget = None
 
     hazards = None
     try:

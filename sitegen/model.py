@@ -204,7 +204,10 @@ class Approval(_Strict):
 
 class Scope(_Strict):
     analyte: Text
-    analyte_species: Text = Field(description="species as it is titrated or liberated, e.g. Fe^2+")
+    analyte_species: Text = Field(
+        description="the analyte as the species that enters the first reaction of the chain,"
+        " e.g. Fe^2+, Cu^2+ (iodometric copper), IO3- (iodate standardisation)"
+    )
     matrix: Text
     working_range: str | None = None
     purpose: str | None = None
