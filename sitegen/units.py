@@ -25,9 +25,13 @@ import pint
 # One registry for the whole process: pint quantities from different
 # registries cannot be combined.
 ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-ureg.define("percent = 0.01 = %")
-ureg.define("permille = 0.001 = ‰")
-ureg.define("ppm = 1e-6")
+for _name, _definition in (
+    ("percent", "percent = 0.01 = %"),
+    ("permille", "permille = 0.001 = ‰"),
+    ("ppm", "ppm = 1e-6"),
+):
+    if _name not in ureg:  # newer pint releases define some of these already
+        ureg.define(_definition)
 
 #: Field kinds and the base unit values are normalised to. The key is the
 #: word used in schema descriptions and messages.
