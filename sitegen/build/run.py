@@ -73,8 +73,12 @@ def run_checks(
     enabled: Iterable[str] | None = None,
 ) -> list[Finding]:
     """Loader findings plus every enabled rule's findings, sorted."""
+    from dataclasses import replace
+
     from ..check.run import run_rules
 
+    if collection.site is not None:
+        settings = replace(settings, burette_band=tuple(collection.site.record.burette_band))
     findings = list(collection.findings)
     findings.extend(run_rules(collection, analyses, settings, enabled))
     if settings.strict:
