@@ -12,6 +12,7 @@ __all__ = ["main"]
 import argparse
 import datetime as _dt
 import json
+import os
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -229,6 +230,16 @@ def main(argv: Sequence[str] | None = None, out: TextIO | None = None,
     except KeyboardInterrupt:
         print(f"{PROG}: interrupted", file=err)
         return 130
+    except Exception as exc:  # a bug in sitegen, not in the records
+        if os.environ.get("SITEGEN_DEBUG"):
+            raise
+        print(
+            f"{PROG}: internal error: {type(exc).__name__}: {exc}\n"
+            f"{PROG}: this is a bug in sitegen, not in your records; set SITEGEN_DEBUG=1 to"
+            " see the traceback and report it",
+            file=err,
+        )
+        return 1
 
 
 if __name__ == "__main__":
