@@ -11,7 +11,7 @@ References:
 
 import math
 
-from sitegen.chem.constants import F, LN10, R, T_STANDARD
+from sitegen.chem.constants import LN10, T_STANDARD, F, R
 
 __all__ = [
     "cell_potential",

@@ -5,11 +5,13 @@ reason), never a file position: the stage that called the chemistry attaches
 positions on the way up.
 """
 
+from sitegen.chem.errors import ChemError
+
 __all__ = ["CurveUndefined", "NoRoot", "NumericsError"]
 
 
-class NumericsError(Exception):
-    """Base class of the numerical electrochemistry errors."""
+class NumericsError(ChemError):
+    """Base class of the numerical electrochemistry errors (a :class:`ChemError`)."""
 
 
 class NoRoot(NumericsError):

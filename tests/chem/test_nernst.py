@@ -13,9 +13,7 @@ def test_constants_match_scipy_codata():
     # scipy.constants carries the CODATA set; F and R are exact since the 2019 SI, and
     # CODATA prints them to 10 significant digits (96485.33212..., 8.314462618...).
     assert constants.F == pytest.approx(sc.physical_constants["Faraday constant"][0], rel=1e-10)
-    assert constants.R == pytest.approx(
-        sc.physical_constants["molar gas constant"][0], rel=1e-9
-    )
+    assert constants.R == pytest.approx(sc.physical_constants["molar gas constant"][0], rel=1e-9)
 
 
 def test_slope_at_25C_is_textbook_value():
@@ -58,8 +56,11 @@ def test_log10_K_of_titration_reactions(n, E_cat, E_an, expected, tol):
 def test_log10_K_consistent_with_gibbs_energy():
     # Delta G = -nFE = -RT ln K, written with scipy's constants, not ours.
     n, E = 2, 0.5
-    lnK = n * sc.physical_constants["Faraday constant"][0] * E / (
-        sc.physical_constants["molar gas constant"][0] * 298.15
+    lnK = (
+        n
+        * sc.physical_constants["Faraday constant"][0]
+        * E
+        / (sc.physical_constants["molar gas constant"][0] * 298.15)
     )
     assert log10_K(n, E, 0.0) == pytest.approx(lnK / math.log(10), rel=1e-9)
 
