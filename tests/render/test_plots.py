@@ -1,0 +1,77 @@
+"""Tests for sitegen.render.plots."""
+
+import re
+
+import numpy as np
+import pytest
+
+from sitegen.analyse import CurveInfo, IndicatorInfo
+from sitegen.render.plots import curve_svg
+
+
+def _curve(note=None, nan=False):
+    v = np.linspace(0.0, 40.0, 81)
+    veq = 20.0
+    e = np.where(v < veq, 0.68 + 0.0592 * np.log10(np.clip(v, 0.1, None) / np.clip(veq - v, 0.1, None)),
+                 1.44 + 0.0592 * np.log10(np.clip(v - veq, 0.1, None) / veq))
+    if nan:
+        e = e.copy()
+        e[(v > veq) & (v < veq + 8)] = np.nan
+    return CurveInfo(
+        volumes_mL=v, E_vs_SHE=e, E_vs_ref=e - 0.241, reference="SCE",
+        reference_name="saturated calomel electrode", equivalence_volume_mL=veq,
+        equivalence_potential_V=1.06, equivalence_potential_ref_V=0.819, break_V=0.4,
+        note=note, titrand_mmol=2.0, assumption="test",
+    )
+
+
+IND = IndicatorInfo("ferroin", "Ferroin", "redox", 1.147, (1.088, 1.206), (0.847, 0.965), 0.01, True, None)
+
+
+def test_byte_identical_across_calls():
+    a = curve_svg(_curve(), IND, "Iron", prefix="p")
+    b = curve_svg(_curve(), IND, "Iron", prefix="p")
+    assert a == b
+
+
+def test_inline_ready_and_accessible():
+    svg = curve_svg(_curve(), IND, "Iron <test>", prefix="m1")
+    assert svg.startswith("<svg") and "<?xml" not in svg and "DOCTYPE" not in svg
+    assert 'role="img"' in svg and 'aria-labelledby="m1-title m1-desc"' in svg
+    assert '<title id="m1-title">Titration curve: Iron &lt;test&gt;</title>' in svg
+    assert 'id="m1-desc"' in svg
+    assert "E / V vs SCE" in svg
+    assert "Ferroin" in svg  # the band is in the legend
+    for i in re.findall(r'\bid="([^"]+)"', svg):
+        assert i.startswith("m1-"), i
+    for ref in re.findall(r"url\(#([^)]+)\)", svg):
+        assert ref.startswith("m1-")
+
+
+def test_prefix_makes_ids_differ():
+    a = curve_svg(_curve(), None, "Iron", prefix="a")
+    b = curve_svg(_curve(), None, "Iron", prefix="b")
+    assert set(re.findall(r'\bid="([^"]+)"', a)).isdisjoint(re.findall(r'\bid="([^"]+)"', b))
+
+
+def _moves(svg):
+    m = re.search(r'<path d="([^"]+)"[^>]*stroke: #0072b2', svg, re.S)
+    assert m, "curve path not found"
+    return m.group(1).count("M")
+
+
+def test_nan_region_is_a_gap_and_described():
+    full = curve_svg(_curve(), None, "T", prefix="x")
+    gap = curve_svg(_curve(note="electrode does not respond", nan=True), None, "T", prefix="x")
+    assert "undefined" in gap and "electrode does not respond" in gap
+    # the curve is one path; a gap starts a new subpath (a second moveto)
+    assert _moves(full) == 1
+    assert _moves(gap) == 2
+    assert "nan" not in gap.lower().replace("nanometre", "")
+
+
+@pytest.mark.parametrize("ref", ["SHE", "Ag/AgCl-sat"])
+def test_axis_names_reference(ref):
+    c = _curve()
+    c = CurveInfo(**{**c.__dict__, "reference": ref})
+    assert f"E / V vs {ref}" in curve_svg(c, None, "T")
