@@ -34,8 +34,13 @@ def build_parser() -> argparse.ArgumentParser:
         default=None,
         help="add H+/H2O (acidic) or OH-/H2O (basic); default: use only the written species",
     )
-    p.add_argument("--format", choices=("text", "json"), default="text", dest="fmt",
-                   help="output format (default: text)")
+    p.add_argument(
+        "--format",
+        choices=("text", "json"),
+        default="text",
+        dest="fmt",
+        help="output format (default: text)",
+    )
     return p
 
 
@@ -51,9 +56,7 @@ def result_json(b: Balanced) -> dict[str, object]:
         "products": {t.species.canonical: _number(t.coeff) for t in b.equation.right},
         "electrons": _number(b.electrons),
         "medium": b.medium,
-        "halves": [
-            {"reaction": h.reaction.canonical, "n": h.n, "kind": h.kind} for h in b.halves
-        ],
+        "halves": [{"reaction": h.reaction.canonical, "n": h.n, "kind": h.kind} for h in b.halves],
     }
 
 

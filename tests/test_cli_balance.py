@@ -25,8 +25,9 @@ def test_text_output():
 
 
 def test_json_output():
-    code, out, _ = _run("Cr2O7^2- + Fe^2+ -> Cr^3+ + Fe^3+", "--medium", "acidic",
-                        "--format", "json")
+    code, out, _ = _run(
+        "Cr2O7^2- + Fe^2+ -> Cr^3+ + Fe^3+", "--medium", "acidic", "--format", "json"
+    )
     assert code == 0
     data = json.loads(out)
     # Skoog, dichromate/iron(II) (from memory).

@@ -47,8 +47,12 @@ def _coeffs(terms: Sequence[object]) -> dict[Species, Fraction]:
     return out
 
 
-def _ratios(reactions: Sequence[Reaction], analyte: Species, titrant: Species,
-            skip: frozenset[int] = frozenset()) -> set[Fraction]:
+def _ratios(
+    reactions: Sequence[Reaction],
+    analyte: Species,
+    titrant: Species,
+    skip: frozenset[int] = frozenset(),
+) -> set[Fraction]:
     sides = [(_coeffs(r.left), _coeffs(r.right)) for r in reactions]
     found: set[Fraction] = set()
 
@@ -73,8 +77,9 @@ def _ratios(reactions: Sequence[Reaction], analyte: Species, titrant: Species,
     return found
 
 
-def mole_ratio(reactions: Sequence[Reaction | str], analyte: Species | str,
-               titrant: Species | str) -> Fraction:
+def mole_ratio(
+    reactions: Sequence[Reaction | str], analyte: Species | str, titrant: Species | str
+) -> Fraction:
     """Mol analyte per mol titrant through the reaction sequence.
 
     Args:
@@ -96,9 +101,12 @@ def mole_ratio(reactions: Sequence[Reaction | str], analyte: Species | str,
 
 def _unique(found: set[Fraction], a: Species, t: Species) -> Fraction:
     if not found:
-        raise NoChain(a.canonical, t.canonical,
-                      "no reaction consumes the titrant together with the analyte "
-                      "or an intermediate made from it")
+        raise NoChain(
+            a.canonical,
+            t.canonical,
+            "no reaction consumes the titrant together with the analyte "
+            "or an intermediate made from it",
+        )
     if len(found) > 1:
         vals = ", ".join(str(v) for v in sorted(found))
         raise NoChain(a.canonical, t.canonical, f"paths give different ratios ({vals})")
@@ -106,9 +114,12 @@ def _unique(found: set[Fraction], a: Species, t: Species) -> Fraction:
     return v
 
 
-def back_titration_ratio(reactions: Sequence[Reaction | str], analyte: Species | str,
-                         excess_reagent: Species | str,
-                         titrant: Species | str) -> tuple[Fraction, Fraction]:
+def back_titration_ratio(
+    reactions: Sequence[Reaction | str],
+    analyte: Species | str,
+    excess_reagent: Species | str,
+    titrant: Species | str,
+) -> tuple[Fraction, Fraction]:
     """Ratios for a back titration.
 
     Args:

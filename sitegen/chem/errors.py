@@ -69,7 +69,7 @@ class FormulaError(ChemError):
         return FormulaError(text, self.index + offset, self.reason, self.suggestion)
 
 
-class UnknownElement(ChemError):
+class UnknownElement(ChemError):  # noqa: N818 - names fixed by the API
     """An element symbol that is not in the table of elements.
 
     Args:
@@ -83,7 +83,7 @@ class UnknownElement(ChemError):
         super().__init__(f"unknown element symbol {symbol!r}")
 
 
-class NoAtomicWeight(ChemError):
+class NoAtomicWeight(ChemError):  # noqa: N818 - names fixed by the API
     """The element exists but has no standard atomic weight (e.g. Tc, Pm, Po).
 
     Args:
@@ -92,12 +92,10 @@ class NoAtomicWeight(ChemError):
 
     def __init__(self, symbol: str):
         self.symbol = symbol
-        super().__init__(
-            f"element {symbol!r} has no standard atomic weight (no stable isotope)"
-        )
+        super().__init__(f"element {symbol!r} has no standard atomic weight (no stable isotope)")
 
 
-class Unbalanced(ChemError):
+class Unbalanced(ChemError):  # noqa: N818 - names fixed by the API
     """A reaction whose atoms or charge do not balance.
 
     Args:
@@ -124,7 +122,7 @@ class Unbalanced(ChemError):
         super().__init__("unbalanced: " + "; ".join(parts) if parts else "unbalanced")
 
 
-class CannotBalance(ChemError):
+class CannotBalance(ChemError):  # noqa: N818 - names fixed by the API
     """No unique balanced equation (or oxidation state) could be found.
 
     Args:
@@ -138,7 +136,7 @@ class CannotBalance(ChemError):
         super().__init__(f"cannot balance: {reason} (species: {', '.join(self.species)})")
 
 
-class NoChain(ChemError):
+class NoChain(ChemError):  # noqa: N818 - names fixed by the API
     """No stoichiometric path links the analyte to the titrant.
 
     Args:

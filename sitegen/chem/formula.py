@@ -3,7 +3,7 @@
 Grammar (whitespace is allowed only around the whole text)::
 
     species  := electron | formula charge? state?
-    electron := "e" ( "-" | "−" | "⁻" | "^-" | "^{-}" )
+    electron := "e" ( "-" | MINUS | "⁻" | "^-" | "^{-}" )
     formula  := part ( DOT mult? part )*          adducts / hydrates
     DOT      := "·" | "•" | "∙" | "⋅" | "*" | "."
     mult     := DIGITS                            e.g. the 7 in FeSO4·7H2O
@@ -16,7 +16,7 @@ Grammar (whitespace is allowed only around the whole text)::
               | SUPER_SIGN SUPER_DIGITS           Fe⁺³
               | SIGN+                             MnO4-, H+, SO4--  (|charge| = #signs)
     body     := DIGITS? SIGN | SIGN DIGITS?
-    SIGN     := "+" | "-" | "−"
+    SIGN     := "+" | "-" | MINUS               MINUS is U+2212
     state    := "(aq)" | "(s)" | "(l)" | "(g)"
 
 The first part of a formula may not carry a leading number: in a reaction a
@@ -81,15 +81,18 @@ Part = tuple[int, tuple[tuple[str, int], ...]]
 # IUPAC Nomenclature of Inorganic Chemistry, Recommendations 2005, Table VI
 # (element sequence, electropositive end first; from memory), modified as
 # documented in the module docstring: O moved to just before F.
+# fmt: off
 _SEQUENCE = (
-    "Og Rn Xe Kr Ar Ne He "
-    "Fr Cs Rb K Na Li Ra Ba Sr Ca Mg Be "
-    "Lr No Md Fm Es Cf Bk Cm Am Pu Np U Pa Th Ac "
-    "Lu Yb Tm Er Ho Dy Tb Gd Eu Sm Pm Nd Pr Ce La Y Sc "
-    "Rf Hf Zr Ti Db Ta Nb V Sg W Mo Cr Bh Re Tc Mn Hs Os Ru Fe Mt Ir Rh Co "
-    "Ds Pt Pd Ni Rg Au Ag Cu Cn Hg Cd Zn Nh Tl In Ga Al "
-    "B Fl Pb Sn Ge Si C Mc Bi Sb As P N H Lv Po Te Se S Ts At I Br Cl O F"
-).split()
+    "Og", "Rn", "Xe", "Kr", "Ar", "Ne", "He", "Fr", "Cs", "Rb", "K", "Na", "Li", "Ra", "Ba", "Sr",
+    "Ca", "Mg", "Be", "Lr", "No", "Md", "Fm", "Es", "Cf", "Bk", "Cm", "Am", "Pu", "Np", "U", "Pa",
+    "Th", "Ac", "Lu", "Yb", "Tm", "Er", "Ho", "Dy", "Tb", "Gd", "Eu", "Sm", "Pm", "Nd", "Pr",
+    "Ce", "La", "Y", "Sc", "Rf", "Hf", "Zr", "Ti", "Db", "Ta", "Nb", "V", "Sg", "W", "Mo", "Cr",
+    "Bh", "Re", "Tc", "Mn", "Hs", "Os", "Ru", "Fe", "Mt", "Ir", "Rh", "Co", "Ds", "Pt", "Pd",
+    "Ni", "Rg", "Au", "Ag", "Cu", "Cn", "Hg", "Cd", "Zn", "Nh", "Tl", "In", "Ga", "Al", "B", "Fl",
+    "Pb", "Sn", "Ge", "Si", "C", "Mc", "Bi", "Sb", "As", "P", "N", "H", "Lv", "Po", "Te", "Se",
+    "S", "Ts", "At", "I", "Br", "Cl", "O", "F",
+)
+# fmt: on
 _RANK = {s: float(i) for i, s in enumerate(_SEQUENCE)}
 # H placed just before B in oxygen-containing parts (oxoacid convention).
 _H_WITH_O_RANK = _RANK["B"] - 0.5
@@ -103,12 +106,13 @@ _ANION_CHARGE = {
 }  # fmt: skip
 
 _DOTS = "·•∙⋅*."
-_SIGNS = {"+": 1, "-": -1, "−": -1}
+_MINUS = "\u2212"  # Unicode MINUS SIGN, accepted like "-"
+_SIGNS = {"+": 1, "-": -1, _MINUS: -1}
 _SUPER_SIGNS = {"⁺": 1, "⁻": -1}
 _SUPER_DIGITS = {c: str(i) for i, c in enumerate("⁰¹²³⁴⁵⁶⁷⁸⁹")}
 _SUB_DIGITS = {c: str(i) for i, c in enumerate("₀₁₂₃₄₅₆₇₈₉")}
 _STATES = ("aq", "s", "l", "g")
-_ELECTRON_SPELLINGS = frozenset({"e-", "e−", "e⁻", "e^-", "e^{-}", "e^−"})
+_ELECTRON_SPELLINGS = frozenset({"e-", "e" + _MINUS, "e⁻", "e^-", "e^{-}", "e^" + _MINUS})
 _SEPARATOR = "·"
 
 
@@ -133,8 +137,9 @@ def _part_text(atoms: tuple[tuple[str, int], ...]) -> str:
     return "".join(s if n == 1 else f"{s}{n}" for s, n in atoms)
 
 
-def _bare_sign_ambiguous(digits: str, single_element: str | None, sign: int,
-                         after_bracket: bool) -> bool:
+def _bare_sign_ambiguous(
+    digits: str, single_element: str | None, sign: int, after_bracket: bool
+) -> bool:
     """Whether ``<digits><one sign>`` could equally mean a charge of ``digits``.
 
     Args:
@@ -186,8 +191,9 @@ class Species:
             merged: Counter[tuple[tuple[str, int], ...]] = Counter()
             for mult, atoms in norm[1:]:
                 merged[atoms] += mult
-            rest = sorted(merged.items(),
-                          key=lambda kv: (kv[0] == (("H", 2), ("O", 1)), _part_text(kv[0])))
+            rest = sorted(
+                merged.items(), key=lambda kv: (kv[0] == (("H", 2), ("O", 1)), _part_text(kv[0]))
+            )
             norm = [norm[0], *((m, a) for a, m in rest)]
         if self.state is not None and self.state not in _STATES:
             raise ValueError(f"unknown state {self.state!r}")
@@ -265,7 +271,9 @@ class _Parser:
         self.n_groups_top = 0
         self.first_symbol: str | None = None
 
-    def fail(self, reason: str, at: int | None = None, suggestion: str | None = None) -> FormulaError:
+    def fail(
+        self, reason: str, at: int | None = None, suggestion: str | None = None
+    ) -> FormulaError:
         return FormulaError(self.t, self.i if at is None else at, reason, suggestion)
 
     def peek(self) -> str:
@@ -304,7 +312,14 @@ class _Parser:
         while True:
             c = self.peek()
             start = self.i
-            if c == "" or c in _DOTS or c in "^+-−" or c in _SUPER_SIGNS or c in _SUPER_DIGITS:
+            if (
+                c == ""
+                or c in _DOTS
+                or c in "^+-"
+                or c == _MINUS
+                or c in _SUPER_SIGNS
+                or c in _SUPER_DIGITS
+            ):
                 break
             if c in ")]":
                 if closer is None:
@@ -322,7 +337,11 @@ class _Parser:
                 group = inner
             elif c.isascii() and c.isupper():
                 sym = c
-                if self.i + 1 < self.end and self.t[self.i + 1].isascii() and self.t[self.i + 1].islower():
+                if (
+                    self.i + 1 < self.end
+                    and self.t[self.i + 1].isascii()
+                    and self.t[self.i + 1].islower()
+                ):
                     sym += self.t[self.i + 1]
                 if sym not in self.symbols:
                     raise UnknownElement(sym, start)
@@ -412,16 +431,21 @@ class _Parser:
             n += 1
             self.i += 1
         if n == 1 and self.last_digits and self.last_digits_end == start:
-            single = self.first_symbol if self.n_groups_top == 1 and not self.last_after_bracket else None
+            single = (
+                self.first_symbol
+                if self.n_groups_top == 1 and not self.last_after_bracket
+                else None
+            )
             if self.n_parts > 1:
                 single = None
             if _bare_sign_ambiguous(self.last_digits, single, sign, self.last_after_bracket):
                 d0 = start - 1
-                sugg = self.t[:d0] + "^" + self.t[d0] + self.t[start:self.end]
+                sugg = self.t[:d0] + "^" + self.t[d0] + self.t[start : self.end]
                 sugg = sugg.strip()
                 alt = self.t[:start].strip() + "^" + c
                 raise FormulaError(
-                    self.t, start,
+                    self.t,
+                    start,
                     f"ambiguous charge {self.last_digits + c!r}: write the charge with a caret, "
                     f"e.g. {sugg!r} (charge {self.t[d0]}{c}) or {alt!r} (charge 1{c})",
                     sugg,
@@ -471,7 +495,9 @@ def parse_species(text: str) -> Species:
             if m is not None:
                 mult = m
         elif p.peek().isdigit() or p.peek() in _SUB_DIGITS:
-            raise p.fail("a formula cannot start with a number (a coefficient belongs to a reaction)")
+            raise p.fail(
+                "a formula cannot start with a number (a coefficient belongs to a reaction)"
+            )
         p.n_parts = len(parts) + 1
         p.n_groups_top = 0
         counts = p.groups(None, 0)

@@ -31,11 +31,12 @@ e.g. Greenwood & Earnshaw, Chemistry of the Elements, 2nd ed. (from memory).
 
 from __future__ import annotations
 
-__all__ = ["oxidation_numbers", "redox_changes"]
+__all__ = ["RedoxChanges", "oxidation_numbers", "redox_changes"]
 
 from collections import Counter
 from fractions import Fraction
 from functools import lru_cache
+from typing import TypedDict
 
 from sitegen.chem.errors import CannotBalance
 from sitegen.chem.formula import Species, parse_species
@@ -43,8 +44,9 @@ from sitegen.chem.reaction import Reaction
 
 _ALKALI = frozenset({"Li", "Na", "K", "Rb", "Cs", "Fr"})
 _ALKALINE_EARTH = frozenset({"Be", "Mg", "Ca", "Sr", "Ba", "Ra"})
+# Non-metals and metalloids; the hydride rule treats B like a metal (NaBH4).
 _NONMETALS = frozenset(
-    "H He B C N O F Ne Si P S Cl Ar As Se Br Kr Te I Xe At Rn Og Ts".split()
+    "H He B C N O F Ne Si P S Cl Ar As Se Br Kr Te I Xe At Rn Og Ts".split()  # noqa: SIM905
 )
 # Halogens in decreasing electronegativity (Pauling scale; common practice).
 _HALOGENS = ("F", "Cl", "Br", "I")
@@ -91,7 +93,18 @@ _IONS: tuple[tuple[dict[str, int], int, dict[str, Fraction]], ...] = tuple(
 _COMMON_FIXED = {"Al": 3, "Zn": 2, "Cd": 2, "Ag": 1, "Sc": 3, "Ga": 3, "Y": 3, "La": 3}
 
 
-class _Undecidable(Exception):
+class RedoxChanges(TypedDict):
+    """Result of :func:`redox_changes` (a plain dict at run time)."""
+
+    oxidised: dict[str, Fraction]
+    """Element -> electrons lost, mol per mol of reaction as written."""
+    reduced: dict[str, Fraction]
+    """Element -> electrons gained."""
+    electrons: Fraction
+    """Electrons transferred (the larger of lost and gained)."""
+
+
+class _Undecidable(Exception):  # noqa: N818 - private signal
     pass
 
 
@@ -118,8 +131,9 @@ def _fixed_states(comp: dict[str, int]) -> dict[str, Fraction]:
     return fixed
 
 
-def _solve_with(comp: dict[str, int], charge: Fraction,
-                fixed: dict[str, Fraction]) -> dict[str, Fraction] | None:
+def _solve_with(
+    comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction]
+) -> dict[str, Fraction] | None:
     """Solve when at most one element is unknown; None if more remain."""
     unknown = [s for s in comp if s not in fixed]
     residual = charge - sum((comp[s] * v for s, v in fixed.items() if s in comp), Fraction(0))
@@ -148,8 +162,9 @@ def _solve_with(comp: dict[str, int], charge: Fraction,
     return out
 
 
-def _split_ions(comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction],
-                depth: int) -> dict[str, Fraction] | None:
+def _split_ions(
+    comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction], depth: int
+) -> dict[str, Fraction] | None:
     """Peel off known polyatomic ions until one unknown remains.
 
     Returns total oxidation number per element (sum over atoms) divided back
@@ -177,8 +192,12 @@ def _split_ions(comp: dict[str, int], charge: Fraction, fixed: dict[str, Fractio
                 return dict(states)
             # Inside the ion the states are fixed by the table; outside, the
             # usual rules still hold for the remainder.
-            sub = _split_ions(rest_comp, rest_charge, {s: v for s, v in fixed.items()
-                                                       if s in rest_comp}, depth + 1)
+            sub = _split_ions(
+                rest_comp,
+                rest_charge,
+                {s: v for s, v in fixed.items() if s in rest_comp},
+                depth + 1,
+            )
             if sub is None:
                 continue
             total: dict[str, Fraction] = {}
@@ -195,7 +214,7 @@ def _split_ions(comp: dict[str, int], charge: Fraction, fixed: dict[str, Fractio
 
 def _part_states(comp: dict[str, int], charge: int) -> dict[str, Fraction]:
     if len(comp) == 1:
-        (sym, n), = comp.items()
+        ((sym, n),) = comp.items()
         return {sym: Fraction(charge, n)}
     fixed = _fixed_states(comp)
     q = Fraction(charge)
@@ -215,16 +234,18 @@ def _part_states(comp: dict[str, int], charge: int) -> dict[str, Fraction]:
 
 @lru_cache(maxsize=4096)
 def _oxidation_numbers(species: Species) -> tuple[tuple[str, Fraction], ...]:
-    totals: Counter[str] = Counter()
+    totals: dict[str, Fraction] = {}
     atoms: Counter[str] = Counter()
     for i, (mult, part) in enumerate(species.parts):
         comp = dict(part)
         try:
             states = _part_states(comp, species.charge if i == 0 else 0)
         except _Undecidable as e:
-            raise CannotBalance(f"oxidation numbers undecidable: {e}", (species.canonical,)) from None
+            raise CannotBalance(
+                f"oxidation numbers undecidable: {e}", (species.canonical,)
+            ) from None
         for sym, n in comp.items():
-            totals[sym] += mult * n * states[sym]
+            totals[sym] = totals.get(sym, Fraction(0)) + mult * n * states[sym]
             atoms[sym] += mult * n
     return tuple((s, Fraction(totals[s]) / atoms[s]) for s in sorted(atoms))
 
@@ -247,7 +268,7 @@ def oxidation_numbers(species: Species | str) -> dict[str, Fraction]:
     return dict(_oxidation_numbers(species.without_state()))
 
 
-def redox_changes(reaction: Reaction) -> dict[str, object]:
+def redox_changes(reaction: Reaction) -> RedoxChanges:
     """Which elements are oxidised and reduced in ``reaction``.
 
     For each element the sum of (coefficient x atoms x oxidation number) is

@@ -220,7 +220,9 @@ def _parse_side(text: str, start: int, end: int) -> tuple[Term, ...]:
         except FormulaError as e:
             raise e.shifted(text, at + skip) from None
         except UnknownElement as e:
-            raise UnknownElement(e.symbol, None if e.index is None else e.index + at + skip) from None
+            raise UnknownElement(
+                e.symbol, None if e.index is None else e.index + at + skip
+            ) from None
         terms.append(Term(coeff, sp.without_state()))
     return tuple(terms)
 

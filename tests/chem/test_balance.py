@@ -24,19 +24,39 @@ def _same(b: Balanced, expected: str) -> None:
     ("skeleton", "medium", "expected", "electrons"),
     [
         # Skoog, permanganate titration of iron(II) (from memory).
-        ("MnO4- + Fe^2+ -> Mn^2+ + Fe^3+", "acidic",
-         "MnO4- + 5 Fe^2+ + 8 H+ -> Mn^2+ + 5 Fe^3+ + 4 H2O", 5),
+        (
+            "MnO4- + Fe^2+ -> Mn^2+ + Fe^3+",
+            "acidic",
+            "MnO4- + 5 Fe^2+ + 8 H+ -> Mn^2+ + 5 Fe^3+ + 4 H2O",
+            5,
+        ),
         # Harris, standardisation of permanganate with oxalic acid (from memory).
-        ("MnO4- + H2C2O4 -> Mn^2+ + CO2", "acidic",
-         "2 MnO4- + 5 H2C2O4 + 6 H+ -> 2 Mn^2+ + 10 CO2 + 8 H2O", 10),
+        (
+            "MnO4- + H2C2O4 -> Mn^2+ + CO2",
+            "acidic",
+            "2 MnO4- + 5 H2C2O4 + 6 H+ -> 2 Mn^2+ + 10 CO2 + 8 H2O",
+            10,
+        ),
         # Harris: permanganate and hydrogen peroxide; the O2 comes from H2O2.
-        ("MnO4- + H2O2 -> Mn^2+ + O2", "acidic",
-         "2 MnO4- + 5 H2O2 + 6 H+ -> 2 Mn^2+ + 5 O2 + 8 H2O", 10),
-        ("MnO4- + H2O2 + H+ -> Mn^2+ + O2 + H2O", None,
-         "2 MnO4- + 5 H2O2 + 6 H+ -> 2 Mn^2+ + 5 O2 + 8 H2O", 10),
+        (
+            "MnO4- + H2O2 -> Mn^2+ + O2",
+            "acidic",
+            "2 MnO4- + 5 H2O2 + 6 H+ -> 2 Mn^2+ + 5 O2 + 8 H2O",
+            10,
+        ),
+        (
+            "MnO4- + H2O2 + H+ -> Mn^2+ + O2 + H2O",
+            None,
+            "2 MnO4- + 5 H2O2 + 6 H+ -> 2 Mn^2+ + 5 O2 + 8 H2O",
+            10,
+        ),
         # Skoog, dichromate titration of iron(II) (from memory).
-        ("Cr2O7^2- + Fe^2+ -> Cr^3+ + Fe^3+", "acidic",
-         "Cr2O7^2- + 6 Fe^2+ + 14 H+ -> 2 Cr^3+ + 6 Fe^3+ + 7 H2O", 6),
+        (
+            "Cr2O7^2- + Fe^2+ -> Cr^3+ + Fe^3+",
+            "acidic",
+            "Cr2O7^2- + 6 Fe^2+ + 14 H+ -> 2 Cr^3+ + 6 Fe^3+ + 7 H2O",
+            6,
+        ),
         ("Ce^4+ + Fe^2+ -> Ce^3+ + Fe^3+", None, "Ce^4+ + Fe^2+ -> Ce^3+ + Fe^3+", 1),
         # Iodometry (Harris, from memory).
         ("I2 + S2O3^2- -> I- + S4O6^2-", None, "I2 + 2 S2O3^2- -> 2 I- + S4O6^2-", 2),
@@ -47,22 +67,34 @@ def _same(b: Balanced, expected: str) -> None:
         ("IO3- + I- -> I3-", "acidic", "IO3- + 8 I- + 6 H+ -> 3 I3- + 3 H2O", Fraction(16, 3)),
         ("IO3- + I- -> I2", "acidic", "IO3- + 5 I- + 6 H+ -> 3 I2 + 3 H2O", 5),
         ("BrO3- + Br- -> Br2", "acidic", "BrO3- + 5 Br- + 6 H+ -> 3 Br2 + 3 H2O", 5),
-        ("BrO3- + H3AsO3 -> Br- + H3AsO4", "acidic",
-         "BrO3- + 3 H3AsO3 -> Br- + 3 H3AsO4", 6),
+        ("BrO3- + H3AsO3 -> Br- + H3AsO4", "acidic", "BrO3- + 3 H3AsO3 -> Br- + 3 H3AsO4", 6),
         # Comproportionation of Mn(VII) and Mn(II) to MnO2.
         ("MnO4- + Mn^2+ -> MnO2", "basic", "2 MnO4- + 3 Mn^2+ + 4 OH- -> 5 MnO2 + 2 H2O", 6),
         ("MnO4- + Mn^2+ -> MnO2", "acidic", "2 MnO4- + 3 Mn^2+ + 2 H2O -> 5 MnO2 + 4 H+", 6),
         # Disproportionation of chlorine in hot base.
         ("Cl2 -> Cl- + ClO3-", "basic", "3 Cl2 + 6 OH- -> 5 Cl- + ClO3- + 3 H2O", 5),
-        ("MnO4- + SO3^2- -> MnO2 + SO4^2-", "basic",
-         "2 MnO4- + 3 SO3^2- + H2O -> 2 MnO2 + 3 SO4^2- + 2 OH-", 6),
+        (
+            "MnO4- + SO3^2- -> MnO2 + SO4^2-",
+            "basic",
+            "2 MnO4- + 3 SO3^2- + H2O -> 2 MnO2 + 3 SO4^2- + 2 OH-",
+            6,
+        ),
         # Iodimetry of arsenic(III).
         ("H3AsO3 + I2 -> H3AsO4 + I-", "acidic", "H3AsO3 + I2 + H2O -> H3AsO4 + 2 I- + 2 H+", 2),
         ("I2 + C6H8O6 -> I- + C6H6O6", "acidic", "I2 + C6H8O6 -> 2 I- + C6H6O6 + 2 H+", 2),
         ("Fe^3+ + Sn^2+ -> Fe^2+ + Sn^4+", None, "2 Fe^3+ + Sn^2+ -> 2 Fe^2+ + Sn^4+", 2),
-        ("Cr2O7^2- + C2H5OH -> Cr^3+ + CH3COOH", "acidic",
-         "2 Cr2O7^2- + 3 C2H5OH + 16 H+ -> 4 Cr^3+ + 3 CH3COOH + 11 H2O", 12),
-        ("Ce^4+ + H2C2O4 -> Ce^3+ + CO2", "acidic", "2 Ce^4+ + H2C2O4 -> 2 Ce^3+ + 2 CO2 + 2 H+", 2),
+        (
+            "Cr2O7^2- + C2H5OH -> Cr^3+ + CH3COOH",
+            "acidic",
+            "2 Cr2O7^2- + 3 C2H5OH + 16 H+ -> 4 Cr^3+ + 3 CH3COOH + 11 H2O",
+            12,
+        ),
+        (
+            "Ce^4+ + H2C2O4 -> Ce^3+ + CO2",
+            "acidic",
+            "2 Ce^4+ + H2C2O4 -> 2 Ce^3+ + 2 CO2 + 2 H+",
+            2,
+        ),
         ("H2O2 + Fe^2+ -> Fe^3+", "acidic", "H2O2 + 2 Fe^2+ + 2 H+ -> 2 Fe^3+ + 2 H2O", 2),
     ],
 )
@@ -178,9 +210,9 @@ def test_half_reaction_errors(ox, red, medium):
 
 def test_nullspace_small_matrix():
     # x + y - z = 0, 2y - z = 0 (hand-solved: (1, 1, 2)).
-    F = Fraction
-    basis = nullspace([[F(1), F(1), F(-1)], [F(0), F(2), F(-1)]], 3)
+    f = Fraction
+    basis = nullspace([[f(1), f(1), f(-1)], [f(0), f(2), f(-1)]], 3)
     assert len(basis) == 1
     v = basis[0]
     assert [x / v[0] for x in v] == [1, 1, 2]
-    assert nullspace([[F(1), F(0)], [F(0), F(1)]], 2) == []
+    assert nullspace([[f(1), f(0)], [f(0), f(1)]], 2) == []

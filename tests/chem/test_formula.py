@@ -23,7 +23,7 @@ from sitegen.chem.formula import Species, molar_mass, parse_species
         ("MnO4-", {"Mn": 1, "O": 4}, -1),
         ("MnO₄⁻", {"Mn": 1, "O": 4}, -1),
         ("SO₄²⁻", {"S": 1, "O": 4}, -2),
-        ("MnO4−", {"Mn": 1, "O": 4}, -1),  # U+2212 minus sign
+        ("MnO4\u2212", {"Mn": 1, "O": 4}, -1),  # U+2212 MINUS SIGN
         ("SO4--", {"S": 1, "O": 4}, -2),
         ("H+", {"H": 1}, 1),
         ("NH4+", {"N": 1, "H": 4}, 1),
@@ -235,7 +235,16 @@ FORBIDDEN = {"yaml", "pydantic", "jinja2", "matplotlib", "ruamel", "io", "os", "
 
 @pytest.mark.parametrize(
     "name",
-    ["errors", "elements", "_atomic_weights", "formula", "reaction", "oxidation", "balance", "chain"],
+    [
+        "errors",
+        "elements",
+        "_atomic_weights",
+        "formula",
+        "reaction",
+        "oxidation",
+        "balance",
+        "chain",
+    ],
 )
 def test_my_chem_modules_are_pure(name):
     """No I/O imports and no open() calls in the core modules written here."""

@@ -20,9 +20,7 @@ from sitegen.chem.elements import atomic_number, atomic_weight, element_symbols,
 from sitegen.chem.errors import NoAtomicWeight, UnknownElement
 from sitegen.chem.formula import molar_mass, parse_species
 
-WITH_WEIGHT = sorted(
-    s for s, (_z, v, _a) in _atomic_weights.ABRIDGED_2021.items() if v is not None
-)
+WITH_WEIGHT = sorted(s for s, (_z, v, _a) in _atomic_weights.ABRIDGED_2021.items() if v is not None)
 
 
 def test_table_covers_h_to_u():
