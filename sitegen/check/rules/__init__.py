@@ -3,3 +3,5 @@
 from . import links  # noqa: F401  (registers rules)
 from . import chemistry  # noqa: F401
 from . import calculation  # noqa: F401
+from . import hazards  # noqa: F401  (registers rules)
+from . import document  # noqa: F401  (registers rules)
