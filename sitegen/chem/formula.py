@@ -195,6 +195,8 @@ class Species:
                 merged.items(), key=lambda kv: (kv[0] == (("H", 2), ("O", 1)), _part_text(kv[0]))
             )
             norm = [norm[0], *((m, a) for a, m in rest)]
+        if not norm and self.charge != -1:
+            raise ValueError("a species without atoms must be the electron (charge -1)")
         if self.state is not None and self.state not in _STATES:
             raise ValueError(f"unknown state {self.state!r}")
         object.__setattr__(self, "parts", tuple(norm))
@@ -270,6 +272,7 @@ class _Parser:
         self.last_after_bracket = False
         self.n_groups_top = 0
         self.first_symbol: str | None = None
+        self.n_parts = 0
 
     def fail(
         self, reason: str, at: int | None = None, suggestion: str | None = None
@@ -450,9 +453,18 @@ class _Parser:
                     f"e.g. {sugg!r} (charge {self.t[d0]}{c}) or {alt!r} (charge 1{c})",
                     sugg,
                 )
+        if n == 1 and self.peek().isascii() and self.peek().isdigit():
+            # "Fe+3", "SO4-2": sign before the magnitude needs the caret.
+            j = self.i
+            while j < self.end and self.t[j].isascii() and self.t[j].isdigit():
+                j += 1
+            digits = self.t[self.i : j]
+            sugg = (self.t[:start] + "^" + digits + c + self.t[j : self.end]).strip()
+            raise self.fail(
+                "a charge written sign-first needs a caret, magnitude first is canonical",
+                suggestion=sugg,
+            )
         return sign * n
-
-    n_parts = 0
 
 
 @lru_cache(maxsize=8192)

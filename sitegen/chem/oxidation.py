@@ -132,14 +132,21 @@ def _fixed_states(comp: dict[str, int]) -> dict[str, Fraction]:
 
 
 def _solve_with(
-    comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction]
+    comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction], nested: bool = False
 ) -> dict[str, Fraction] | None:
-    """Solve when at most one element is unknown; None if more remain."""
+    """Solve when at most one element is unknown; None if more remain.
+
+    ``nested``: ``comp`` is what is left after peeling off ions. Then a
+    mismatch with every state fixed means the split was wrong (None), not a
+    peroxide.
+    """
     unknown = [s for s in comp if s not in fixed]
     residual = charge - sum((comp[s] * v for s, v in fixed.items() if s in comp), Fraction(0))
     if not unknown:
         if residual == 0:
             return {s: fixed[s] for s in comp}
+        if nested:
+            return None
         if "O" in comp and fixed.get("O") == -2:
             out = {s: fixed[s] for s in comp}
             rest = sum((comp[s] * v for s, v in fixed.items() if s != "O"), Fraction(0))
@@ -163,14 +170,19 @@ def _solve_with(
 
 
 def _split_ions(
-    comp: dict[str, int], charge: Fraction, fixed: dict[str, Fraction], depth: int
+    comp: dict[str, int],
+    charge: Fraction,
+    fixed: dict[str, Fraction],
+    depth: int,
+    whole: dict[str, int] | None = None,
 ) -> dict[str, Fraction] | None:
     """Peel off known polyatomic ions until one unknown remains.
 
     Returns total oxidation number per element (sum over atoms) divided back
     into averages, or None.
     """
-    direct = _solve_with(comp, charge, fixed)
+    whole = comp if whole is None else whole
+    direct = _solve_with(comp, charge, fixed, nested=depth > 0)
     if direct is not None:
         return direct
     if depth > 4:
@@ -178,6 +190,10 @@ def _split_ions(
     unknown = {s for s in comp if s not in fixed}
     for ion, q, states in _IONS:
         if not (set(ion) & unknown):
+            continue
+        if "N" in ion and "C" in ion and whole.get("C") != whole.get("N"):
+            # CN-/SCN- only when every C is bound in them (cyanides,
+            # thiocyanates), not in organic N compounds such as urea.
             continue
         most = min(comp.get(s, 0) // n for s, n in ion.items())
         for k in range(most, 0, -1):
@@ -197,6 +213,7 @@ def _split_ions(
                 rest_charge,
                 {s: v for s, v in fixed.items() if s in rest_comp},
                 depth + 1,
+                whole,
             )
             if sub is None:
                 continue

@@ -125,6 +125,8 @@ def test_species_direct_construction_is_normalised():
     assert a.canonical == "MnO4-"
     with pytest.raises(ValueError):
         Species(((2, (("H", 2), ("O", 1))),), 0)
+    with pytest.raises(ValueError):
+        Species((), 2)  # only the electron has no atoms
 
 
 @pytest.mark.parametrize(
@@ -148,6 +150,19 @@ def test_ambiguous_bare_charge_rejected_with_caret_suggestion(text, suggestion, 
     assert suggestion in str(info.value)
     # The suggestion itself must parse.
     parse_species(suggestion)
+
+
+@pytest.mark.parametrize(
+    ("text", "suggestion"), [("Fe+3", "Fe^3+"), ("SO4-2", "SO4^2-"), ("Fe+3(aq)", "Fe^3+")]
+)
+def test_sign_first_bare_charge_suggests_caret(text, suggestion):
+    with pytest.raises(FormulaError) as info:
+        parse_species(text)
+    assert info.value.suggestion == suggestion
+    assert (
+        parse_species(suggestion).charge
+        == parse_species(suggestion.replace("^", "^{") + "}").charge
+    )
 
 
 def test_unknown_element():

@@ -70,6 +70,14 @@ from sitegen.chem.reaction import parse_reaction
             {"N": Fraction(3), "H": Fraction(1), "Ce": Fraction(4), "O": Fraction(-2)},
         ),
         ("K3[Fe(CN)6]", {"K": Fraction(1), "Fe": Fraction(3), "C": Fraction(2), "N": Fraction(-3)}),
+        # Ammonium peroxodisulfate: NH4+ split off, then S capped at +6.
+        (
+            "(NH4)2S2O8",
+            {"N": Fraction(-3), "H": Fraction(1), "S": Fraction(6), "O": Fraction(-7, 4)},
+        ),
+        # 1 N at -3 and 1 at +5.
+        ("NH4NO3", {"N": Fraction(1), "H": Fraction(1), "O": Fraction(-2)}),
+        ("KSCN", {"K": Fraction(1), "S": Fraction(-2), "C": Fraction(4), "N": Fraction(-3)}),
         ("Ag2CrO4", {"Ag": Fraction(1), "Cr": Fraction(6), "O": Fraction(-2)}),
         ("e-", {}),
     ],
@@ -92,6 +100,10 @@ def test_undecidable_names_the_species():
     with pytest.raises(CannotBalance) as info:
         oxidation_numbers("FeCo")
     assert info.value.species == ("FeCo",)
+    # Urea: C and N both unknown and C is not in a cyanide group; the
+    # rules do not guess.
+    with pytest.raises(CannotBalance):
+        oxidation_numbers("CO(NH2)2")
 
 
 def test_redox_changes_permanganate_peroxide():
