@@ -109,4 +109,14 @@ def parse_measure(text: str | int | float, kind: str) -> Measure:
     except (pint.errors.PintError, AttributeError, TypeError, ValueError) as exc:
         want = f"a {kind.replace('_', ' ')} unit such as '{base}'" if base else "no unit"
         raise UnitError(f"{raw!r}: unit {unit_text!r} is not {want}") from exc
+    if value < 0 and kind in _NON_NEGATIVE:
+        raise UnitError(f"{raw!r}: a {kind.replace('_', ' ')} cannot be negative")
+    if kind == "temperature" and value <= 0:
+        raise UnitError(f"{raw!r} is at or below absolute zero")
     return Measure(text=raw, value=value, unit=base, decimals=decimals, kind=kind)
+
+
+#: Kinds that are physically never negative (potentials can be).
+_NON_NEGATIVE = frozenset(
+    {"volume", "mass", "concentration", "molar_mass", "mass_fraction", "mass_concentration"}
+)

@@ -70,11 +70,6 @@ GENERATORS: dict[str, Callable[[Path], None]] = {
 #: Cases the loader gets wrong today: case -> reason. Each runs as a strict
 #: xfail, so the test starts failing (and the entry must go) once fixed.
 KNOWN_WRONG: dict[str, str] = {
-    "bad-date-impossible": "YAML timestamp 2026-02-30 raises ValueError in the loader",
-    "bad-date-time-out-of-range": "a YAML timestamp with hour 25 raises ValueError in the loader",
-    "control-character": "PyYAML ReaderError for a control character escapes load_collection",
-    "huge-integer": "a 5001-digit integer raises ValueError (int max str digits) in the loader",
-    "negative-volume": "the record format accepts negative volumes",
 }
 
 CASES = sorted(p.name for p in BAD.iterdir() if p.is_dir())

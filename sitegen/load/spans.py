@@ -10,7 +10,6 @@ from __future__ import annotations
 
 __all__ = ["KeyPath", "Parsed", "YamlProblem", "parse_yaml"]
 
-import datetime as _dt
 from dataclasses import dataclass, field
 
 import yaml
@@ -98,7 +97,13 @@ def parse_yaml(text: str) -> Parsed:
         YamlProblem: malformed YAML, duplicate keys, aliases, more than one
             document, non-string keys or nesting deeper than is sane.
     """
-    loader = _Loader(text)
+    try:
+        loader = _Loader(text)
+    except yaml.YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        pos = getattr(exc, "position", None)
+        line, col = ((mark.line + 1, mark.column + 1) if mark else _offset_pos(text, pos))
+        raise YamlProblem("yaml-syntax", f"malformed YAML: {_reason(exc)}", line, col) from None
     try:
         try:
             node = loader.get_single_node()
@@ -120,7 +125,9 @@ def parse_yaml(text: str) -> Parsed:
                 (mark.column + 1) if mark else 1,
             ) from None
         except yaml.YAMLError as exc:
-            raise YamlProblem("yaml-syntax", f"malformed YAML: {exc}", 1, 1) from None
+            pos = getattr(exc, "position", None)
+            line, col = _offset_pos(text, pos)
+            raise YamlProblem("yaml-syntax", f"malformed YAML: {_reason(exc)}", line, col) from None
     finally:
         loader.dispose()
     if node is None:
@@ -128,6 +135,27 @@ def parse_yaml(text: str) -> Parsed:
     parsed = Parsed(data=None)
     parsed.data = _walk(node, (), parsed, loader, 0)
     return parsed
+
+
+def _offset_pos(text: str, offset: int | None) -> tuple[int, int]:
+    if offset is None:
+        return (1, 1)
+    before = text[:offset]
+    return (before.count("\n") + 1, offset - (before.rfind("\n") + 1) + 1)
+
+
+def _reason(exc: Exception) -> str:
+    if isinstance(exc, yaml.reader.ReaderError):
+        ch = exc.character if isinstance(exc.character, str) else chr(exc.character)
+        return f"control character U+{ord(ch):04X} is not allowed in YAML text"
+    return str(getattr(exc, "problem", None) or exc).strip()
+
+
+#: Tags a record may use: the plain scalars. Anything else (!!binary,
+#: !!python/..., custom tags) is refused rather than silently converted.
+_ALLOWED_TAGS = frozenset(
+    f"tag:yaml.org,2002:{t}" for t in ("str", "int", "float", "bool", "null", "timestamp")
+)
 
 
 def _pos(node: Node) -> tuple[int, int]:
@@ -167,11 +195,23 @@ def _walk(node: Node, path: KeyPath, out: Parsed, loader: _Loader, depth: int) -
     if isinstance(node, SequenceNode):
         return [_walk(v, (*path, i), out, loader, depth + 1) for i, v in enumerate(node.value)]
     assert isinstance(node, ScalarNode)
+    if node.tag not in _ALLOWED_TAGS:
+        line, col = _pos(node)
+        raise YamlProblem(
+            "yaml-tag", f"YAML tag {node.tag!r} is not allowed in records; write plain text", line, col
+        )
     try:
         value = loader.construct_object(node, deep=True)
     except yaml.constructor.ConstructorError as exc:
         line, col = _pos(node)
-        raise YamlProblem("yaml-syntax", f"bad value: {exc.problem}", line, col) from None
-    if isinstance(value, _dt.datetime):
-        return value
+        raise YamlProblem("bad-value", f"bad value: {exc.problem}", line, col) from None
+    except (ValueError, OverflowError) as exc:
+        # e.g. 2026-02-30 (no such day) or an integer too long to convert
+        line, col = _pos(node)
+        where = ".".join(str(p) for p in path) or "value"
+        if node.tag.endswith("timestamp"):
+            why = f"{node.value!r} is not a valid date or time ({exc})"
+        else:
+            why = f"a number of {len(node.value)} characters is not a sensible value"
+        raise YamlProblem("bad-value", f"{where}: {why}", line, col) from None
     return value
