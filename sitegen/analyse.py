@@ -277,6 +277,7 @@ def analyse_method(
     reagents: Mapping[str, Any],
     indicators: Mapping[str, Any],
     reference: str | None = None,
+    safety_rules: Any = None,
 ) -> Analysis:
     """Compute the chemistry of one loaded method record.
 
@@ -286,6 +287,9 @@ def analyse_method(
         indicators: id -> ``Loaded`` indicator records.
         reference: reference electrode key for plots (default: the
             record's ``conditions.reference_electrode``).
+        safety_rules: the safety rule set (built-in plus the lab's own, from
+            :func:`sitegen.hazards.rules_engine.load_rules`); built-in only
+            when None.
     """
     from .chem import electrodes, nernst
     from .chem.formula import molar_mass, parse_species
@@ -530,13 +534,9 @@ def analyse_method(
         except ModuleNotFoundError:  # TEMP until chem.uncertainty lands
             budget = None
 
-    hazards = None
-    try:
-        from .hazards.summary import method_hazards
+    from .hazards.summary import method_hazards
 
-        hazards = method_hazards(rec, {k: v.record for k, v in reagents.items()})
-    except ImportError:
-        hazards = None
+    hazards = method_hazards(rec, {k: v.record for k, v in reagents.items()}, rules=safety_rules)
 
     return Analysis(
         method_id=rec.id,

@@ -14,11 +14,13 @@ import time
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..check.registry import Settings
 from ..errors import Finding, Severity, Span, sort_findings
-from ..load.collection import Collection, load_collection, load_paths
+
+if TYPE_CHECKING:
+    from ..load.collection import Collection
 
 
 @dataclass
@@ -50,6 +52,10 @@ class BuildReport:
     excluded: list[tuple[str, str]] = field(default_factory=list)
     stage_seconds: dict[str, float] = field(default_factory=dict)
     files: int = 0
+    #: ids of the methods whose files were rendered anew, sorted
+    rebuilt: list[str] = field(default_factory=list)
+    #: False when the output already held exactly the new site
+    output_rewritten: bool = False
 
 
 def _reference(collection: Collection) -> str | None:
@@ -59,9 +65,13 @@ def _reference(collection: Collection) -> str | None:
 def analyse_all(collection: Collection) -> dict[str, Any]:
     """Analyse every loaded method (sorted by id)."""
     from ..analyse import analyse_method
+    from ..hazards.rules_engine import load_rules
 
+    rules = load_rules(collection.safety_rules_source)
     return {
-        mid: analyse_method(loaded, collection.reagents, collection.indicators)
+        mid: analyse_method(
+            loaded, collection.reagents, collection.indicators, safety_rules=rules
+        )
         for mid, loaded in sorted(collection.methods.items())
     }
 
@@ -107,6 +117,8 @@ def check_paths(
     for p in paths:
         if not p.exists():
             raise FileNotFoundError(f"{p}: no such file or folder")
+    from ..load.collection import load_paths
+
     collection = load_paths(list(paths))
     return check_collection(collection, settings or Settings(), enabled)
 
@@ -133,6 +145,7 @@ def build_site(
         FileNotFoundError: ``source`` has no site.yaml.
     """
     from ..clock import build_date
+    from ..load.collection import load_collection
     from ..render.site import RenderOptions, render_site
     from .write import check_output_dir, write_site
 
@@ -197,6 +210,7 @@ def build_site(
     write_site(out, files)
     times["write"] = time.perf_counter() - t0
     report.written = True
+    report.output_rewritten = True
     report.files = len(files)
     report.methods_built = len(collection.methods)
     return report
