@@ -114,6 +114,9 @@ _SUB_DIGITS = {c: str(i) for i, c in enumerate("₀₁₂₃₄₅₆₇₈₉")
 _STATES = ("aq", "s", "l", "g")
 _ELECTRON_SPELLINGS = frozenset({"e-", "e" + _MINUS, "e⁻", "e^-", "e^{-}", "e^" + _MINUS})
 _SEPARATOR = "·"
+# Longest count or charge accepted; keeps int() far from Python's
+# 4300-digit conversion limit and rejects nonsense early.
+_MAX_DIGITS = 6
 
 
 def _order(counts: dict[str, int]) -> tuple[tuple[str, int], ...]:
@@ -299,6 +302,8 @@ class _Parser:
             self.i += 1
         if not digits:
             return None
+        if len(digits) > _MAX_DIGITS:
+            raise self.fail(f"count longer than {_MAX_DIGITS} digits", start)
         if digits[0] == "0":
             raise self.fail("zero count" if int(digits) == 0 else "leading zero in a count", start)
         if table == "ascii":
@@ -402,6 +407,8 @@ class _Parser:
                 if self.peek() != "}":
                     raise self.fail("expected '}' to close the charge")
                 self.i += 1
+            if len(digits) > _MAX_DIGITS:
+                raise self.fail(f"charge longer than {_MAX_DIGITS} digits", start)
             if digits and int(digits) == 0:
                 raise self.fail("zero charge magnitude", start)
             return sign * int(digits or "1")
@@ -422,6 +429,8 @@ class _Parser:
                     raise self.fail("superscript charge needs a sign (⁺ or ⁻)")
                 sign = _SUPER_SIGNS[self.peek()]
                 self.i += 1
+            if len(digits) > _MAX_DIGITS:
+                raise self.fail(f"charge longer than {_MAX_DIGITS} digits", start)
             if digits and int(digits) == 0:
                 raise self.fail("zero charge magnitude", start)
             return sign * int(digits or "1")

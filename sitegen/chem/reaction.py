@@ -53,6 +53,8 @@ _ARROWS: tuple[tuple[str, Arrow], ...] = (
     ("⇄", "="),
     ("=", "="),
 )
+# Longest coefficient text accepted (e.g. "123456/1000000"); avoids huge ints.
+_MAX_COEFF_CHARS = 15
 _PLUS = re.compile(r"\s+\+\s+")
 _COEFF = re.compile(r"(\d+/\d+|\d+\.\d+|\.\d+|\d+)\s*")
 
@@ -181,6 +183,8 @@ def _parse_coeff(text: str, term: str, offset: int) -> tuple[Fraction, int]:
     if not m:
         return Fraction(1), 0
     raw = m.group(1)
+    if len(raw) > _MAX_COEFF_CHARS:
+        raise FormulaError(text, offset, f"coefficient longer than {_MAX_COEFF_CHARS} characters")
     if "/" in raw:
         num, den = raw.split("/")
         if int(den) == 0:

@@ -165,6 +165,15 @@ def test_sign_first_bare_charge_suggests_caret(text, suggestion):
     )
 
 
+@pytest.mark.parametrize(
+    ("text", "index"), [("H" + "9" * 5000, 1), ("Fe^" + "9" * 5000 + "+", 2), ("H1234567", 1)]
+)
+def test_absurd_numbers_are_formula_errors(text, index):
+    with pytest.raises(FormulaError) as info:
+        parse_species(text)
+    assert info.value.index == index
+
+
 def test_unknown_element():
     with pytest.raises(UnknownElement) as info:
         parse_species("XxO2")

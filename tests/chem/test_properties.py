@@ -182,3 +182,33 @@ def test_balancer_never_returns_unbalanced(i, j, medium):
     per_ox = Fraction(h.n) / next(t.coeff for t in h.reaction.left if t.species == ox_sp)
     coeff = next(t.coeff for t in b.equation.left if t.species == ox_sp)
     assert b.electrons == coeff * per_ox
+
+
+ALPHABET = "HCONSFeMnCrIKa()[]{}^+-·*.0123456789 ₂₄³⁺⁻e\u2212"
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.text(alphabet=ALPHABET, max_size=14))
+def test_parse_species_fails_only_with_chem_errors(text):
+    """Arbitrary text either parses or raises a ChemError - never a crash."""
+    from sitegen.chem.errors import ChemError
+
+    try:
+        sp = parse_species(text)
+    except ChemError as e:
+        index = getattr(e, "index", None)
+        assert index is None or 0 <= index <= len(text)
+        return
+    assert parse_species(sp.canonical) == sp
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.text(alphabet=ALPHABET + "=>→ /", max_size=24))
+def test_parse_reaction_fails_only_with_chem_errors(text):
+    from sitegen.chem.errors import ChemError
+
+    try:
+        parse_reaction(text)
+    except ChemError as e:
+        index = getattr(e, "index", None)
+        assert index is None or 0 <= index <= len(text)

@@ -140,6 +140,13 @@ def test_parse_errors_carry_index_in_whole_text(text, index):
     assert info.value.text == text
 
 
+@pytest.mark.parametrize("coeff", ["9" * 5000, "1/" + "9" * 5000, "0." + "5" * 5000])
+def test_absurd_coefficients_are_formula_errors(coeff):
+    with pytest.raises(FormulaError) as info:
+        parse_reaction(f"{coeff} H2 -> H2")
+    assert info.value.index == 0
+
+
 def test_ambiguous_charge_suggestion_survives_in_reaction():
     with pytest.raises(FormulaError) as info:
         parse_reaction("Fe3+ + e- = Fe^2+")
