@@ -56,6 +56,9 @@ class Collection:
     safety_rules_source: Source | None = None
     sources: dict[str, Source] = field(default_factory=dict)
     findings: list[Finding] = field(default_factory=list)
+    #: kind folder -> file stems that exist but did not load (their own
+    #: findings say why; references to them are not "missing")
+    unloadable: dict[str, set[str]] = field(default_factory=dict)
 
 
 def find_root(path: Path) -> Path | None:
@@ -122,7 +125,7 @@ def load_collection(root: Path, only: Iterable[Path] | None = None, cwd: Path | 
         files = _files(root / folder)
         if folder == "records" and only_set is not None:
             files = [f for f in files if f.resolve() in only_set]
-        _load_kind(files, model, target, cwd, col)
+        _load_kind(files, model, target, cwd, col, folder)
     return col
 
 
@@ -150,15 +153,31 @@ def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
 
 
 def _load_kind(
-    files: list[Path], model: type[Any], target: dict[str, Loaded], cwd: Path, col: Collection
+    files: list[Path], model: type[Any], target: dict[str, Loaded], cwd: Path, col: Collection,
+    folder: str = "",
 ) -> None:
+    failed = col.unloadable.setdefault(folder, set())
     for path in files:
+        if not path.resolve().is_relative_to(col.root.resolve()):
+            col.findings.append(
+                Finding(
+                    "outside-source",
+                    Severity.ERROR,
+                    f"{path.name} is a link to {path.resolve()}, outside the source folder;"
+                    " records must live in the source folder",
+                    Span(_shown(path, cwd), 1, 1),
+                )
+            )
+            failed.add(path.stem)
+            continue
         src = _read(path, cwd, col)
         if src is None:
+            failed.add(path.stem)
             continue
         loaded, findings = load_text(model, src)
         col.findings.extend(findings)
         if loaded is None:
+            failed.add(path.stem)
             continue
         rid = loaded.record.id
         if rid != path.stem:

@@ -82,6 +82,18 @@ def validate(model: type[M], parsed: Parsed, source: Source) -> tuple[M | None, 
         return model.model_validate(parsed.data), []
     except ValidationError as exc:
         findings = [_finding(model, err, parsed, source) for err in exc.errors()]
+        # A typo'd key gives "unknown key 'revison'; did you mean 'revision'?"
+        # and "required field 'revision' is missing": keep only the first.
+        suggested = {
+            f.message.split("did you mean ")[1].strip("'?")
+            for f in findings
+            if f.rule == "unknown-key" and "did you mean" in f.message
+        }
+        findings = [
+            f
+            for f in findings
+            if not (f.rule == "missing-field" and f.message.split("'")[1] in suggested)
+        ]
         # A union tries each branch; keep one message per position.
         unique = {(f.span, f.rule): f for f in findings}
         return None, list(unique.values())

@@ -16,8 +16,10 @@ def missing_reagent(ctx: Context, loaded, analysis) -> Iterator[Finding]:  # typ
     must have a reagent record under reagents/."""
     rec = loaded.record
     reagents = ctx.collection.reagents
+    # a reagent file that exists but failed to load has its own findings
+    broken = ctx.collection.unloadable.get("reagents", set())
     for i, use in enumerate(rec.reagents):
-        if use.ref not in reagents:
+        if use.ref not in reagents and use.ref not in broken:
             yield ctx.finding(
                 "missing-reagent",
                 loaded,
@@ -26,7 +28,7 @@ def missing_reagent(ctx: Context, loaded, analysis) -> Iterator[Finding]:  # typ
             )
     for key in ("titrant", "excess_reagent"):
         ref = getattr(rec.titration, key)
-        if ref is not None and ref not in reagents:
+        if ref is not None and ref not in reagents and ref not in broken:
             yield ctx.finding(
                 "missing-reagent",
                 loaded,
@@ -47,7 +49,8 @@ def missing_reagent(ctx: Context, loaded, analysis) -> Iterator[Finding]:  # typ
 def missing_indicator(ctx: Context, loaded, analysis) -> Iterator[Finding]:  # type: ignore[no-untyped-def]
     """A method's indicator must have an indicator record under indicators/."""
     ref = loaded.record.titration.indicator
-    if ref is not None and ref not in ctx.collection.indicators:
+    broken = ctx.collection.unloadable.get("indicators", set())
+    if ref is not None and ref not in ctx.collection.indicators and ref not in broken:
         yield ctx.finding(
             "missing-indicator",
             loaded,
