@@ -17,6 +17,7 @@ __all__ = [
     "date",
     "fixed",
     "fraction",
+    "general",
     "percent",
     "plus_minus",
     "potential",
@@ -88,6 +89,18 @@ def sig(x: float | None, digits: int = 3) -> str:
         return fixed(x, decimals)
     mant, e = f"{x:.{digits - 1}e}".split("e")
     return _minus(f"{mant} × 10^{int(e)}")
+
+
+def general(x: float | None, digits: int = 6) -> str:
+    """``x`` in its shortest form up to ``digits`` significant digits
+    (31.25, 0.05, 0.1): for inputs as the record gives them."""
+    if not _finite(x):
+        return MISSING
+    assert x is not None
+    text = f"{x:.{digits}g}"
+    if "e" in text:
+        return sig(x, digits)
+    return _minus(text)
 
 
 def potential(volts: float | None) -> str:

@@ -299,7 +299,9 @@ def _check_rows(findings: Sequence[Finding]) -> list[dict[str, Any]]:
         rows.append(_check_row(info.id, by_rule.get(info.id, [])))
     for rid in sorted(set(by_rule) - known):
         rows.append(_check_row(rid, by_rule[rid]))
-    return rows
+    # problems first: a technician looks for what failed, not for the passes
+    rank = {"fail": 0, "warn": 1, "pass": 2}
+    return sorted(rows, key=lambda r: rank[r["status"]])
 
 
 def _check_row(rid: str, found: Sequence[Finding]) -> dict[str, Any]:
@@ -465,7 +467,7 @@ def _calc_block(record: Any, analysis: Any) -> dict[str, Any]:
     block["result"] = {
         "formula": res.formula,
         "inputs": [
-            {"symbol": s, "what": d, "value": fmt.sig(v, 6), "unit": u} for s, d, v, u in res.inputs
+            {"symbol": s, "what": d, "value": fmt.general(v), "unit": u} for s, d, v, u in res.inputs
         ],
         "recomputed": fmt.fixed(res.value, res.decimals),
         "recomputed_full": fmt.sig(res.value, 6),
@@ -478,7 +480,7 @@ def _calc_block(record: Any, analysis: Any) -> dict[str, Any]:
             "rows": [
                 {
                     "name": str(c.name),
-                    "value": fmt.sig(c.value, 6),
+                    "value": fmt.general(c.value),
                     "u": fmt.sig(c.u, 2),
                     "unit": str(c.unit),
                     "sensitivity": fmt.sig(c.sensitivity, 3),
@@ -658,7 +660,9 @@ def method_page(
         ],
         "standardisation": _standardisation(rec, collection, published, root),
     }
-    ctx["checks"] = _check_rows(findings)
+    checks = _check_rows(findings)
+    ctx["checks"] = [c for c in checks if c["status"] != "pass"]
+    ctx["passed"] = [c["rule"] for c in checks if c["status"] == "pass"]
     ctx["findings_count"] = len(findings)
     ctx["history"] = [
         {"revision": h.revision, "date": fmt.date(h.date), "change": h.change}

@@ -103,19 +103,21 @@ def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> 
             e = np.asarray(curve.E_vs_ref, dtype=float)
             if indicator is not None and indicator.range_ref_V is not None:
                 lo, hi = indicator.range_ref_V
+                # transparent fill but an opaque hatch (edge colour): the
+                # band stays visible in greyscale print
+                rgb = matplotlib.colors.to_rgb(PALETTE["band"])
                 ax.axhspan(
                     lo,
                     hi,
-                    facecolor=PALETTE["band"],
-                    alpha=0.25,
-                    hatch="//",
-                    edgecolor=PALETTE["band"],
+                    facecolor=(*rgb, 0.25),
+                    hatch="///",
+                    edgecolor=(*rgb, 0.9),
                     linewidth=0.0,
                     label=f"{indicator.name}: transition range",
                 )
             # NaN points stay NaN: matplotlib leaves a gap there, which is
             # what an undefined potential should look like.
-            ax.plot(v, e, color=PALETTE["curve"], linewidth=2.0, linestyle="-", label="E")
+            ax.plot(v, e, color=PALETTE["curve"], linewidth=2.0, linestyle="-", label="computed potential")
             veq = curve.equivalence_volume_mL
             ax.axvline(veq, color=PALETTE["equivalence"], linestyle="--", linewidth=1.2)
             if curve.equivalence_potential_ref_V is not None:

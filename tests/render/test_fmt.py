@@ -45,3 +45,10 @@ def test_signed_and_fraction():
 def test_data_float_is_stable():
     assert fmt.data_float(0.1 + 0.2) == 0.3
     assert fmt.csv_number(-0.00000001, 6) == "0.000000"
+
+
+def test_general_keeps_inputs_short():
+    assert fmt.general(31.25) == "31.25"
+    assert fmt.general(0.05) == "0.05"
+    assert fmt.general(-0.1) == "\u22120.1"
+    assert fmt.general(None) == fmt.MISSING
