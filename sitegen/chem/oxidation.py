@@ -36,6 +36,7 @@ __all__ = ["RedoxChanges", "oxidation_numbers", "redox_changes"]
 from collections import Counter
 from fractions import Fraction
 from functools import lru_cache
+from itertools import pairwise
 from typing import TypedDict
 
 from sitegen.chem.errors import CannotBalance
@@ -285,28 +286,65 @@ def oxidation_numbers(species: Species | str) -> dict[str, Fraction]:
     return dict(_oxidation_numbers(species.without_state()))
 
 
-def redox_changes(reaction: Reaction) -> RedoxChanges:
-    """Which elements are oxidised and reduced in ``reaction``.
+def _min_flow(left: dict[Fraction, Fraction], right: dict[Fraction, Fraction]) -> Fraction | None:
+    """Least total oxidation-number change that turns one distribution of an
+    element's atoms over states into the other (1-D transport distance:
+    the integral of the difference of the cumulative amounts). None when
+    the amounts of atoms differ (unbalanced reaction)."""
+    if sum(left.values(), Fraction(0)) != sum(right.values(), Fraction(0)):
+        return None
+    states = sorted(set(left) | set(right))
+    flow = Fraction(0)
+    below = Fraction(0)  # reactant minus product atoms at states <= current
+    for a, b in pairwise(states):
+        below += left.get(a, Fraction(0)) - right.get(a, Fraction(0))
+        flow += abs(below) * (b - a)
+    return flow
 
-    For each element the sum of (coefficient x atoms x oxidation number) is
-    compared between the sides (electrons themselves carry no element).
+
+def redox_changes(reaction: Reaction) -> RedoxChanges:
+    """Which elements are oxidised and reduced in ``reaction``, and how much.
+
+    Each species' atoms of an element are taken at that species' average
+    oxidation number. For every element the atoms must move from the
+    reactant states to the product states; the least total movement
+    (1-D transport distance) splits into an upward part (oxidation) and a
+    downward part (reduction) whose difference is the net change. This
+    counts comproportionation (IO3- + 5 I- -> 3 I2: 5 e-) and
+    disproportionation, which a net sum per element would miss. If an
+    element's atoms do not balance, its net change is used.
 
     Returns:
         ``{"oxidised": {element: electrons lost}, "reduced": {element:
-        electrons gained}, "electrons": total transferred}`` for the
-        reaction as written (amounts in mol per mol of reaction, exact).
-        For a half-reaction only one of the two maps is non-empty.
+        electrons gained}, "electrons": n}`` in mol per mol of reaction as
+        written, exact. For a half-reaction ``n`` is the number of e-
+        written; for a full reaction it is the electrons lost (= gained).
     """
-    sums: dict[str, Fraction] = {}
-    for sign, terms in ((-1, reaction.left), (1, reaction.right)):
+    dist: dict[str, tuple[dict[Fraction, Fraction], dict[Fraction, Fraction]]] = {}
+    for side, terms in ((0, reaction.left), (1, reaction.right)):
         for t in terms:
             if t.species.is_electron:
                 continue
             for sym, v in oxidation_numbers(t.species).items():
                 n = t.species.composition[sym]
-                sums[sym] = sums.get(sym, Fraction(0)) + sign * t.coeff * n * v
-    oxidised = {s: d for s, d in sorted(sums.items()) if d > 0}
-    reduced = {s: -d for s, d in sorted(sums.items()) if d < 0}
+                pair = dist.setdefault(sym, ({}, {}))
+                pair[side][v] = pair[side].get(v, Fraction(0)) + t.coeff * n
+    oxidised: dict[str, Fraction] = {}
+    reduced: dict[str, Fraction] = {}
+    for sym in sorted(dist):
+        left, right = dist[sym]
+        net = sum((v * a for v, a in right.items()), Fraction(0)) - sum(
+            (v * a for v, a in left.items()), Fraction(0)
+        )
+        flow = _min_flow(left, right)
+        if flow is None:
+            flow = abs(net)
+        up, down = (flow + net) / 2, (flow - net) / 2
+        if up:
+            oxidised[sym] = up
+        if down:
+            reduced[sym] = down
     lost = sum(oxidised.values(), Fraction(0))
     gained = sum(reduced.values(), Fraction(0))
-    return {"oxidised": oxidised, "reduced": reduced, "electrons": max(lost, gained)}
+    electrons = abs(reaction.electrons) if reaction.is_half else max(lost, gained)
+    return {"oxidised": oxidised, "reduced": reduced, "electrons": electrons}

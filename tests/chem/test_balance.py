@@ -112,6 +112,31 @@ def test_textbook_equations(skeleton, medium, expected, electrons):
         assert (h.reaction.electrons > 0) == (h.kind == "reduction")
 
 
+@pytest.mark.parametrize(
+    ("skeleton", "expected", "electrons"),
+    [
+        # Molecular (salt) equations: no ions to build halves, so the null
+        # space decides (Skoog; from memory).
+        (
+            "KMnO4 + FeSO4 + H2SO4 -> K2SO4 + MnSO4 + Fe2(SO4)3 + H2O",
+            "2 KMnO4 + 10 FeSO4 + 8 H2SO4 -> K2SO4 + 2 MnSO4 + 5 Fe2(SO4)3 + 8 H2O",
+            10,
+        ),
+        (
+            "KIO3 + KI + H2SO4 -> I2 + K2SO4 + H2O",
+            "KIO3 + 5 KI + 3 H2SO4 -> 3 I2 + 3 K2SO4 + 3 H2O",
+            5,
+        ),
+        ("Cu + HNO3 -> Cu(NO3)2 + NO + H2O", "3 Cu + 8 HNO3 -> 3 Cu(NO3)2 + 2 NO + 4 H2O", 6),
+    ],
+)
+def test_molecular_equations(skeleton, expected, electrons):
+    b = balance(skeleton)
+    _same(b, expected)
+    assert b.halves == ()
+    assert b.electrons == electrons
+
+
 def test_written_medium_species_are_replaced_when_a_medium_is_given():
     a = balance("MnO4- + Fe^2+ + H2O -> Mn^2+ + Fe^3+", "acidic")
     _same(a, "MnO4- + 5 Fe^2+ + 8 H+ -> Mn^2+ + 5 Fe^3+ + 4 H2O")

@@ -119,3 +119,27 @@ def test_redox_changes_half_reaction():
     ch = redox_changes(parse_reaction("Cr2O7^2- + 14 H+ + 6 e- = 2 Cr^3+ + 7 H2O"))
     assert ch["reduced"] == {"Cr": Fraction(6)}
     assert ch["oxidised"] == {}
+
+
+@pytest.mark.parametrize(
+    ("text", "electrons", "oxidised", "reduced"),
+    [
+        # Comproportionation and disproportionation: I and Cl go both ways
+        # (textbook electron counts, e.g. Harris; from memory).
+        ("IO3- + 5 I- + 6 H+ -> 3 I2 + 3 H2O", 5, {"I": 5}, {"I": 5}),
+        ("3 Cl2 + 6 OH- -> 5 Cl- + ClO3- + 3 H2O", 5, {"Cl": 5}, {"Cl": 5}),
+        ("2 MnO4- + 3 Mn^2+ + 2 H2O -> 5 MnO2 + 4 H+", 6, {"Mn": 6}, {"Mn": 6}),
+        # Molecular equation with spectators (K+, SO4^2-).
+        (
+            "2 KMnO4 + 10 FeSO4 + 8 H2SO4 -> K2SO4 + 2 MnSO4 + 5 Fe2(SO4)3 + 8 H2O",
+            10,
+            {"Fe": 10},
+            {"Mn": 10},
+        ),
+    ],
+)
+def test_redox_changes_counts_both_directions(text, electrons, oxidised, reduced):
+    ch = redox_changes(parse_reaction(text))
+    assert ch["electrons"] == electrons
+    assert ch["oxidised"] == oxidised
+    assert ch["reduced"] == reduced
