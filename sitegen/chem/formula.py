@@ -242,7 +242,9 @@ class Species:
         return self.canonical + (f"({self.state})" if self.state else "")
 
     def without_state(self) -> Species:
-        """The same species with ``state=None``."""
+        """The same species with ``state=None`` (``self`` if already so)."""
+        if self.state is None:
+            return self
         return Species(self.parts, self.charge)
 
     def __str__(self) -> str:
