@@ -145,7 +145,9 @@ def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
     files: list[Path] = []
     whole = False
     for p in paths:
-        if p.is_dir():
+        if p.is_dir() or p.resolve().parent != (root / "records").resolve():
+            # a folder, or a shared record (reagent, indicator, site): every
+            # method may depend on it, so check them all
             whole = True
         else:
             files.append(p)

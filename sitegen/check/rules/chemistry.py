@@ -49,3 +49,24 @@ for _id, _doc in _DOCS.items():
     _fn.__doc__ = _doc
     _fn.__name__ = _id.replace("-", "_")
     rule(_id)(_fn)
+
+
+@rule("reagent-formula", scope="reagent")
+def reagent_formula(ctx: Context, loaded: Any) -> Iterator[Finding]:
+    """A reagent's formula and the species it supplies must be written in
+    the species notation, with known elements, so its molar mass can be
+    computed from the IUPAC atomic weights."""
+    from ...chem.errors import ChemError
+    from ...chem.formula import molar_mass, parse_species
+
+    rec = loaded.record
+    for key in ("formula", "supplies"):
+        text = getattr(rec, key)
+        if text is None:
+            continue
+        try:
+            sp = parse_species(text)
+            if key == "formula":
+                molar_mass(sp)
+        except ChemError as exc:
+            yield ctx.finding("reagent-formula", loaded, (key,), f"{key} {text!r}: {exc}")
