@@ -119,8 +119,10 @@ def _cmd_check(args: argparse.Namespace, out: TextIO, err: TextIO) -> int:
     else:
         _print_findings(findings, result.collection.sources, out)
         n_err, n_warn = len(result.errors), len(result.warnings)
+        sel = result.collection.selected
+        n_methods = len(sel) if sel is not None else len(result.collection.methods)
         print(
-            f"{len(result.collection.methods)} method(s) checked: {n_err} error(s),"
+            f"{n_methods} method(s) checked: {n_err} error(s),"
             f" {n_warn} warning(s)",
             file=err,
         )

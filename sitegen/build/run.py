@@ -120,7 +120,13 @@ def check_paths(
     from ..load.collection import load_paths
 
     collection = load_paths(list(paths))
-    return check_collection(collection, settings or Settings(), enabled)
+    result = check_collection(collection, settings or Settings(), enabled)
+    if collection.selected is not None:
+        others = {
+            p for p in collection.sources if Path(p).parent.name == "records"
+        } - collection.selected
+        result.findings = [f for f in result.findings if f.span.path not in others]
+    return result
 
 
 def _method_of(finding: Finding, collection: Collection) -> str | None:

@@ -59,6 +59,9 @@ class Collection:
     #: kind folder -> file stems that exist but did not load (their own
     #: findings say why; references to them are not "missing")
     unloadable: dict[str, set[str]] = field(default_factory=dict)
+    #: when only some method files were named: their shown paths; findings
+    #: in other method records are then not reported
+    selected: set[str] | None = None
 
 
 def find_root(path: Path) -> Path | None:
@@ -151,7 +154,12 @@ def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
             whole = True
         else:
             files.append(p)
-    return load_collection(root, None if whole else files, cwd)
+    # Cross-record rules need every record loaded; the caller narrows the
+    # findings to the named files (see ``Collection.selected``).
+    col = load_collection(root, None, cwd)
+    if not whole:
+        col.selected = {_shown(f, cwd) for f in files}
+    return col
 
 
 def _load_kind(
