@@ -353,49 +353,49 @@ def _beta(cp: Couple, lnT: NDArray[np.float64], lnH: float, f_RT: float) -> NDAr
 
 
 def _build(t: Titration, V: NDArray[np.float64]) -> _System:
-    Vtot = t.V0_mL + V
+    # Everything is formed in logs of positive sums: amounts (mmol) over the
+    # total volume, so dilution is one subtraction of ln(V0 + V).
+    an, ti = t.analyte, t.titrant
     A = t.analyte_mmol
     partner = t.analyte_partner_mol_per_L * t.V0_mL  # mmol, diluted like the rest
-    ra, rt = t.analyte.ratio, t.titrant.ratio
-    if t.analyte_form == "red":
-        T_analyte = (A + ra * partner) / Vtot
-        T_titrant = rt * t.titrant_mol_per_L * V / Vtot
-        p, q, T_p, T_q, sign = t.titrant, t.analyte, T_titrant, T_analyte, 1.0
-    else:
-        T_analyte = (ra * A + partner) / Vtot
-        T_titrant = t.titrant_mol_per_L * V / Vtot
-        p, q, T_p, T_q, sign = t.analyte, t.titrant, T_analyte, T_titrant, -1.0
-    Ne_A = _analyte_electrons_mmol(t)
-    Ne_T = _titrant_electrons_per_mmol(t) * t.titrant_mol_per_L * V
     f = t.initial_fraction
-    C = sign * ((1.0 - f) * Ne_A - Ne_T) / Vtot
-    # w T - C for the reductant side and w T + C for the oxidant side, summed
-    # from positive terms so that they keep full precision when C ~ w T.
-    if t.analyte_form == "red":
-        D_q = (t.analyte.n / t.analyte.b * (f * A + ra * partner) + Ne_T) / Vtot
-        D_p = (1.0 - f) * Ne_A / Vtot + 0.0 * V
-    else:
-        D_q = (1.0 - f) * Ne_A / Vtot + 0.0 * V
-        D_p = (f * Ne_A + t.analyte.n / t.analyte.b * partner + Ne_T) / Vtot
-    has_p, has_q = T_p > 0, T_q > 0
+    Vtot = t.V0_mL + V
+    e_per_mL = _titrant_electrons_per_mmol(t) * t.titrant_mol_per_L  # mmol e- per mL
+    Ne_A = _analyte_electrons_mmol(t)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ln_Vtot = np.log(Vtot)
+        ln_V = np.log(V)  # -inf at V = 0: no titrant yet
+        if t.analyte_form == "red":
+            p, q, sign = ti, an, 1.0
+            lnT_q = math.log(A + an.ratio * partner) - ln_Vtot
+            lnT_p = math.log(ti.ratio * t.titrant_mol_per_L) + ln_V - ln_Vtot
+            # w T - C and w T + C written as sums of positive terms, exact
+            # even when C ~ w T (the start of the curve)
+            lnD_q = np.log(an.n / an.b * (f * A + an.ratio * partner) + e_per_mL * V) - ln_Vtot
+            lnD_p = math.log((1.0 - f) * Ne_A) - ln_Vtot
+        else:
+            p, q, sign = an, ti, -1.0
+            lnT_p = math.log(an.ratio * A + partner) - ln_Vtot
+            lnT_q = math.log(t.titrant_mol_per_L) + ln_V - ln_Vtot
+            lnD_p = np.log(f * Ne_A + an.n / an.b * partner + e_per_mL * V) - ln_Vtot
+            lnD_q = math.log((1.0 - f) * Ne_A) - ln_Vtot
+        C = sign * ((1.0 - f) * Ne_A - e_per_mL * V) / Vtot
+        ln_absC = np.log(np.abs(C))
+        lnC_pos = np.where(C > 0, ln_absC, -np.inf)
+        lnC_neg = np.where(C < 0, ln_absC, -np.inf)
+        base_p = math.log(p.n / p.b) + lnT_p  # -inf where the couple is absent
+        base_q = math.log(q.n / q.b) + lnT_q
+        # Where the limiting couple is more than half converted (the start of
+        # the curve), write the balance with its *minority* form instead:
+        # N = C + P becomes w_q T_q (1 - y_q) + P = D_q, and P = -C + N becomes
+        # w_p T_p y_p + N = D_p. Otherwise ln y ~ -1e-9 drowns in ln T.
+        mode = np.where(
+            lnC_pos - base_q > -_LN2, 1, np.where(lnC_neg - base_p > -_LN2, 2, 0)
+        ).astype(np.int8)
+    lnT_p = np.where(np.isfinite(lnT_p), lnT_p, 0.0)  # only feeds beta where absent
+    lnT_q = np.where(np.isfinite(lnT_q), lnT_q, 0.0)
     lnH = math.log(t.H_mol_per_L)
     f_RT = F / (R * t.T_K)
-    with np.errstate(divide="ignore"):
-        lnT_p = np.where(has_p, np.log(np.where(has_p, T_p, 1.0)), 0.0)
-        lnT_q = np.where(has_q, np.log(np.where(has_q, T_q, 1.0)), 0.0)
-        lnC_pos = np.log(np.maximum(C, 0.0))
-        lnC_neg = np.log(np.maximum(-C, 0.0))
-        lnD_q = np.log(D_q)
-        lnD_p = np.log(D_p)
-    base_p = np.where(has_p, math.log(p.n / p.b) + lnT_p, -np.inf)
-    base_q = np.where(has_q, math.log(q.n / q.b) + lnT_q, -np.inf)
-    # Where the limiting couple is more than half converted (the start of the
-    # curve), write the balance with its *minority* form instead: N = C + P
-    # becomes w_q T_q (1 - y_q) + P = D_q, and P = -C + N becomes
-    # w_p T_p y_p + N = D_p. Otherwise ln y ~ -1e-9 drowns in ln T.
-    mode = np.zeros(V.shape, dtype=np.int8)
-    mode[(C > 0) & (C > 0.5 * np.exp(base_q))] = 1
-    mode[(C < 0) & (-C > 0.5 * np.exp(base_p))] = 2
     return _System(
         p=p,
         q=q,
@@ -519,49 +519,71 @@ def _start(s: _System) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArra
     ok = np.isfinite(E)
     if not ok.all():
         E = np.where(ok, E, 0.5 * (s.p.E0 + s.q.E0))
+    # Within 0.1 % of the stoichiometric point (where C is still comparable to
+    # the minorities) polish the start on the two-minority model
+    # ln P ~ Lp + ap E, ln N ~ Lq - bq E, in which phi is cheap: it spares
+    # the exact solver extra passes over the few points right at equivalence.
+    with np.errstate(invalid="ignore"):
+        near = np.flatnonzero(np.fmax(s.lnC_pos - s.base_q, s.lnC_neg - s.base_p) < math.log(1e-3))
+    if near.size:
+        bq = aq / rq
+        Lp = s.base_p[near] + s.beta_p[near]
+        Lq = s.base_q[near] - s.beta_q[near] / rq
+        Cp, Cn = s.lnC_pos[near], s.lnC_neg[near]
+        u = E[near]
+        for _ in range(2):
+            lnP, lnN = Lp + ap * u, Lq - bq * u
+            left, right = _lae(lnP, Cp), _lae(lnN, Cn)
+            du = (left - right) / (ap * np.exp(lnP - left) + bq * np.exp(lnN - right))
+            u = u - np.clip(du, -0.05, 0.05)
+        u = np.clip(u, lo[near], hi[near])
+        E[near] = np.where(np.isfinite(u), u, E[near])
     return E, lo, hi
+
+
+def _newton_pass(sub: _System, Ea, la, ha):
+    """One safeguarded Newton pass: new E, bracket, and which points are done."""
+    phi, dphi, left, right = _phi(sub, Ea)
+    la = np.where(phi < 0, Ea, la)  # Ea lies inside the bracket already
+    ha = np.where(phi > 0, Ea, ha)
+    # phi is at the rounding level of its two log terms: nothing more to
+    # gain (flat stretches, e.g. at V = 0, cannot do better than this).
+    converged = np.abs(phi) <= 8.0 * _EPS * (1.0 + np.abs(left) + np.abs(right))
+    En = Ea - np.clip(phi / dphi, -1.0, 1.0)
+    bad = ~((En > la) & (En < ha))  # also catches NaN
+    if bad.any():
+        both = np.isfinite(la) & np.isfinite(ha)
+        fallback = np.where(
+            both,
+            0.5 * (la + ha),
+            np.where(np.isfinite(la), np.maximum(Ea, la) + 1.0, np.minimum(Ea, ha) - 1.0),
+        )
+        En = np.where(bad, fallback, En)
+        step_done = np.abs(En - Ea) <= np.where(bad, _E_TOL, _NEWTON_DONE)
+    else:
+        step_done = np.abs(En - Ea) <= _NEWTON_DONE
+    En = np.where(converged, Ea, En)
+    done = converged | step_done | (ha - la <= _E_TOL)
+    return En, la, ha, done, phi
 
 
 def _solve(s: _System) -> NDArray[np.float64]:
     """Solve phi(E) = 0 at all points at once by safeguarded Newton."""
     E, lo, hi = _start(s)
-    idx = np.arange(E.size)
-    sub = s
-    for _ in range(_MAX_ITER):
-        Ea = E[idx]
-        phi, dphi, left, right = _phi(sub, Ea)
-        la = np.where(phi < 0, Ea, lo[idx])  # Ea lies inside the bracket already
-        ha = np.where(phi > 0, Ea, hi[idx])
-        # phi is at the rounding level of its two log terms: nothing more to
-        # gain (flat stretches, e.g. at V = 0, cannot do better than this).
-        converged = np.abs(phi) <= 8.0 * _EPS * (1.0 + np.abs(left) + np.abs(right))
-        with np.errstate(divide="ignore", invalid="ignore"):
-            En = Ea - np.clip(phi / dphi, -1.0, 1.0)
-        bad = ~((En > la) & (En < ha))  # also catches NaN
-        if bad.any():
-            both = np.isfinite(la) & np.isfinite(ha)
-            fallback = np.where(
-                both,
-                0.5 * (la + ha),
-                np.where(np.isfinite(la), np.maximum(Ea, la) + 1.0, np.minimum(Ea, ha) - 1.0),
-            )
-            En = np.where(bad, fallback, En)
-        En = np.where(converged, Ea, En)
-        done = (
-            converged
-            | (ha - la <= _E_TOL)
-            | (np.abs(En - Ea) <= np.where(bad, _E_TOL, _NEWTON_DONE))
-        )
-        E[idx] = En
-        lo[idx], hi[idx] = la, ha
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        # first pass on every point without index bookkeeping
+        E, lo, hi, done, phi = _newton_pass(s, E, lo, hi)
         if done.all():
             return E
-        if done.any():
-            # Keep iterating only on the points still moving: later iterations
-            # touch a handful of points near equivalence, not the whole curve.
-            keep = ~done
-            idx = idx[keep]
-            sub = s.subset(idx)
+        idx = np.flatnonzero(~done)
+        for _ in range(_MAX_ITER):
+            # Later passes touch only the points still moving: a handful near
+            # equivalence, not the whole curve.
+            En, la, ha, done, phi = _newton_pass(s.subset(idx), E[idx], lo[idx], hi[idx])
+            E[idx], lo[idx], hi[idx] = En, la, ha
+            if done.all():
+                return E
+            idx = idx[~done]
     worst = int(idx[0])
     raise NoRoot(float(phi[0]), (float(lo[worst]), float(hi[worst])))
 
