@@ -39,10 +39,12 @@ def test_json_output():
     assert data["equation"] == "Cr2O7^2- + 6 Fe^2+ + 14 H+ -> 2 Cr^3+ + 6 Fe^3+ + 7 H2O"
 
 
-def test_fractional_electrons_print_as_fraction():
+def test_triiodide_comproportionation_moves_five_electrons():
+    # IO3- + 5 I- -> 3 I2 moves 5 e-; with I3- (= I2·I-) the count is the same
+    # (Harris, Quantitative Chemical Analysis, iodometry; from memory)
     code, out, _ = _run("IO3- + I- -> I3-", "--medium", "acidic", "--format", "json")
     assert code == 0
-    assert json.loads(out)["electrons"] == "16/3"
+    assert json.loads(out)["electrons"] == 5
 
 
 def test_chemistry_error_exit_1():

@@ -337,6 +337,11 @@ def _balance(skeleton: Reaction, medium: str | None) -> Balanced:
         ((total, electrons, red, ox),) = results.values()
         eq = _reaction_from(dict(total), out_order, "->")
         check_balanced(eq)  # never return an unbalanced result
+        # The electrons moved by the equation, counted atom by atom (this
+        # knows that I3- is I2·I-, which the halves' average states do not).
+        moved = redox_changes(eq)["electrons"]
+        if moved.denominator == 1 or electrons.denominator != 1:
+            electrons = moved
         half_order = [sp for sp, _ in fixed] + [sp for sp in free if sp not in dict(fixed)]
         halves_out = (_half_reaction_obj(red, half_order), _half_reaction_obj(ox, half_order))
         return Balanced(eq, halves_out, electrons, medium)

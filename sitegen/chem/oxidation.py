@@ -302,6 +302,27 @@ def _min_flow(left: dict[Fraction, Fraction], right: dict[Fraction, Fraction]) -
     return flow
 
 
+#: Species whose atoms of one element sit in known, different states, where
+#: the average would misstate the electrons moved: trihalide ions are a
+#: dihalogen bound to a halide ion (X2·X-), so I3- holds two I at 0 and one
+#: at -1 (Greenwood & Earnshaw, Chemistry of the Elements, 2nd ed., the
+#: polyhalide ions; from memory). With them IO3- + 8 I- -> 3 I3- moves
+#: 5 electrons, as IO3- + 5 I- -> 3 I2 does, not 16/3.
+_KNOWN_STATES: dict[str, dict[str, tuple[tuple[Fraction, int], ...]]] = {
+    "I3-": {"I": ((Fraction(0), 2), (Fraction(-1), 1))},
+    "Br3-": {"Br": ((Fraction(0), 2), (Fraction(-1), 1))},
+}
+
+
+def _atom_states(sp: Species) -> dict[str, tuple[tuple[Fraction, int], ...]]:
+    """Element -> ((oxidation number, atom count), ...) for one species."""
+    known = _KNOWN_STATES.get(sp.without_state().canonical)
+    if known is not None:
+        return known
+    comp = sp.composition
+    return {sym: ((v, comp[sym]),) for sym, v in oxidation_numbers(sp).items()}
+
+
 def redox_changes(reaction: Reaction) -> RedoxChanges:
     """Which elements are oxidised and reduced in ``reaction``, and how much.
 
@@ -325,10 +346,10 @@ def redox_changes(reaction: Reaction) -> RedoxChanges:
         for t in terms:
             if t.species.is_electron:
                 continue
-            for sym, v in oxidation_numbers(t.species).items():
-                n = t.species.composition[sym]
+            for sym, states in _atom_states(t.species).items():
                 pair = dist.setdefault(sym, ({}, {}))
-                pair[side][v] = pair[side].get(v, Fraction(0)) + t.coeff * n
+                for v, n in states:
+                    pair[side][v] = pair[side].get(v, Fraction(0)) + t.coeff * n
     oxidised: dict[str, Fraction] = {}
     reduced: dict[str, Fraction] = {}
     for sym in sorted(dist):

@@ -63,8 +63,10 @@ def _same(b: Balanced, expected: str) -> None:
         ("I3- + S2O3^2- -> I- + S4O6^2-", None, "I3- + 2 S2O3^2- -> 3 I- + S4O6^2-", 2),
         ("Cu^2+ + I- -> CuI + I3-", None, "2 Cu^2+ + 5 I- -> 2 CuI + I3-", 2),
         ("Cu^2+ + I- -> CuI + I2", None, "2 Cu^2+ + 4 I- -> 2 CuI + I2", 2),
-        # KIO3 standardisation; 16/3 e- because I3- averages -1/3.
-        ("IO3- + I- -> I3-", "acidic", "IO3- + 8 I- + 6 H+ -> 3 I3- + 3 H2O", Fraction(16, 3)),
+        # KIO3 standardisation.
+        # 5 e-: I3- is I2·I-, so this is IO3- + 5 I- -> 3 I2 plus 3 I- bound to the
+        # iodine (Harris, Quantitative Chemical Analysis, iodometry; from memory)
+        ("IO3- + I- -> I3-", "acidic", "IO3- + 8 I- + 6 H+ -> 3 I3- + 3 H2O", Fraction(5)),
         ("IO3- + I- -> I2", "acidic", "IO3- + 5 I- + 6 H+ -> 3 I2 + 3 H2O", 5),
         ("BrO3- + Br- -> Br2", "acidic", "BrO3- + 5 Br- + 6 H+ -> 3 Br2 + 3 H2O", 5),
         ("BrO3- + H3AsO3 -> Br- + H3AsO4", "acidic", "BrO3- + 3 H3AsO3 -> Br- + 3 H3AsO4", 6),
