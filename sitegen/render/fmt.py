@@ -21,8 +21,8 @@ __all__ = [
     "percent",
     "plus_minus",
     "potential",
-    "signed",
     "sig",
+    "signed",
     "volume",
 ]
 

@@ -22,6 +22,7 @@ PALETTE = {
     "curve": "#0072B2",  # blue, solid
     "equivalence": "#D55E00",  # vermillion, dashed + marker
     "band": "#E69F00",  # orange, hatched band
+    "band_hatch": "#8C6400",  # darker orange for the hatch lines
 }
 
 _ID = re.compile(r'\bid="([^"]+)"')
@@ -103,15 +104,16 @@ def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> 
             e = np.asarray(curve.E_vs_ref, dtype=float)
             if indicator is not None and indicator.range_ref_V is not None:
                 lo, hi = indicator.range_ref_V
-                # transparent fill but an opaque hatch (edge colour): the
-                # band stays visible in greyscale print
-                rgb = matplotlib.colors.to_rgb(PALETTE["band"])
+                # a light fill plus a darker hatch on top: the band stays
+                # visible in greyscale print, where a pale fill disappears
+                ax.axhspan(lo, hi, facecolor=PALETTE["band"], alpha=0.3, linewidth=0.0)
                 ax.axhspan(
                     lo,
                     hi,
-                    facecolor=(*rgb, 0.25),
+                    facecolor="none",
                     hatch="///",
-                    edgecolor=(*rgb, 0.9),
+                    hatchcolor=PALETTE["band_hatch"],
+                    edgecolor="none",
                     linewidth=0.0,
                     label=f"{indicator.name}: transition range",
                 )
@@ -119,7 +121,13 @@ def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> 
             # what an undefined potential should look like.
             ax.plot(v, e, color=PALETTE["curve"], linewidth=2.0, linestyle="-", label="computed potential")
             veq = curve.equivalence_volume_mL
-            ax.axvline(veq, color=PALETTE["equivalence"], linestyle="--", linewidth=1.2)
+            ax.axvline(
+                veq,
+                color=PALETTE["equivalence"],
+                linestyle="--",
+                linewidth=1.2,
+                label=f"equivalence volume, {fmt.volume(veq)} mL",
+            )
             if curve.equivalence_potential_ref_V is not None:
                 ax.plot(
                     [veq],
@@ -128,7 +136,7 @@ def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> 
                     markersize=7,
                     color=PALETTE["equivalence"],
                     linestyle="none",
-                    label=f"equivalence point, {fmt.volume(veq)} mL",
+                    label="equivalence point",
                 )
             ax.set_xlabel("titrant added / mL")
             ax.set_ylabel(f"E / V vs {ref}")

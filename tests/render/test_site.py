@@ -193,3 +193,23 @@ def test_record_text_cannot_inject(tmp_path, options):
     assert b"&lt;script&gt;window.pwned=1&lt;/script&gt;" in files["methods/iron-ii-ceric/index.html"]
     index = json.loads(files["search-index.json"])
     assert any("<script>" in d["title"] for d in index["documents"])  # data, shown via textContent
+
+
+def test_search_index_content(site, demo):
+    col, _ = demo
+    data = json.loads(site["search-index.json"])
+    js = site["search-index.js"].decode()
+    assert js.startswith("window.SITEGEN_SEARCH = ") and json.loads(js[len("window.SITEGEN_SEARCH = "):-2]) == data
+    docs = {d["id"]: d for d in data["documents"]}
+    for mid, lo in col.methods.items():
+        rec = lo.record
+        if rec.status.value == "retired":
+            assert mid not in docs
+            continue
+        d = docs[mid]
+        assert d["title"] == rec.title and d["analyte"] == rec.scope.analyte
+        assert d["matrix"] == rec.scope.matrix
+        for use in rec.reagents:
+            r = col.reagents[use.ref].record
+            assert r.name in d["reagents"] and r.formula in d["formulas"]
+        assert d["url"] in site
