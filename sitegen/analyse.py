@@ -515,7 +515,7 @@ def analyse_method(
         result = _worked_result(rec, reagents, factor_used, excess_used, mm, out)
 
     # -- curve -------------------------------------------------------------------
-    curve = None
+    curve = model = None
     if (
         titration_rx is not None
         and titrant_species is not None
@@ -523,16 +523,15 @@ def analyse_method(
         and len(parts) == 2
         and electrons is not None
     ):
-        curve = _curve(rec, titration_rx, parts, titrant_species, titrand_species, ref_key, out)
+        curve, model = _curve(
+            rec, titration_rx, parts, titrant_species, titrand_species, ref_key, out
+        )
 
-    indicator = _indicator(rec, indicators, curve, parts, titrand_species, ref_key, T, out)
+    indicator = _indicator(rec, indicators, curve, model, ref_key, T)
 
     budget = None
     if result is not None:
-        try:
-            budget = _budget(rec, result, reagents, indicator)
-        except ModuleNotFoundError:  # TEMP until chem.uncertainty lands
-            budget = None
+        budget = _budget(rec, result, reagents, indicator)
 
     from .hazards.summary import method_hazards
 
@@ -700,7 +699,7 @@ def _curve(
     titrand_species: str,
     ref_key: str,
     out: _Collector,
-) -> CurveInfo | None:
+) -> tuple[CurveInfo | None, Any]:
     from .chem import curve as cv
     from .chem import electrodes
 
@@ -710,7 +709,7 @@ def _curve(
     c_t = (we.titrant_concentration or rec.titration.titrant_concentration).value
     mmol_titrand = (we.titrant_volume.value - we.blank_volume.value) * c_t * ratio
     if mmol_titrand <= 0:
-        return None
+        return None, None
     ta, td = parts["titrant"], parts["titrand"]
     tc, dc = rec.couples.titrant, rec.couples.titrand
     titrant = cv.Couple(
@@ -754,10 +753,10 @@ def _curve(
             brk = None
     except Exception as exc:  # the numerics report why they failed
         out.add("curve-failed", ("couples",), f"the titration curve could not be computed: {exc}")
-        return None
+        return None, None
     e_ref = c.E_V - electrodes.REFERENCE_ELECTRODES[ref_key].offset_V
     eq = c.equivalence_potential_V
-    return CurveInfo(
+    info = CurveInfo(
         volumes_mL=np.asarray(c.volumes_mL, dtype=float),
         E_vs_SHE=np.asarray(c.E_V, dtype=float),
         E_vs_ref=np.asarray(e_ref, dtype=float),
@@ -773,17 +772,16 @@ def _curve(
         titrand_mmol=mmol_titrand,
         assumption=ZERO_VOLUME_ASSUMPTION,
     )
+    return info, t
 
 
 def _indicator(
     rec: MethodRecord,
     indicators: Mapping[str, Any],
     curve: CurveInfo | None,
-    parts: Mapping[str, Any],
-    titrand_species: str | None,
+    model: Any,
     ref_key: str,
     T: float,
-    out: _Collector,
 ) -> IndicatorInfo | None:
     ref = rec.titration.indicator
     if ref is None or ref not in indicators:
@@ -797,6 +795,7 @@ def _indicator(
             " colour, and no transition potential is computed",
         }.get(ind.kind, "the indicator record gives no transition potential")
         return IndicatorInfo(ref, ind.name, ind.kind, None, None, None, None, None, note)
+    from .chem import curve as cv
     from .chem import electrodes, nernst
 
     E = ind.transition_potential.value
@@ -806,36 +805,26 @@ def _indicator(
     err: float | None = None
     on_break: bool | None = None
     note = None
-    if curve is not None:
-        v = curve.volumes_mL
-        e = curve.E_vs_SHE
-        ok = np.isfinite(e)
-        if ok.sum() >= 2:
-            vv, ee = v[ok], e[ok]
-            order = np.argsort(ee)
-            lo, hi = float(ee.min()), float(ee.max())
-            if lo <= E <= hi:
-                v_end = float(np.interp(E, ee[order], vv[order]))
-                err = 100.0 * (v_end - curve.equivalence_volume_mL) / curve.equivalence_volume_mL
-                err = _exact_indicator_error(rec, E, curve, err)
-            else:
-                note = (
-                    f"the indicator's transition potential ({E:.3f} V vs SHE) lies outside the"
-                    " computed curve"
-                )
-            if curve.break_V is not None:
-                veq = curve.equivalence_volume_mL
-                e_lo = float(np.interp(0.999 * veq, vv, ee))
-                e_hi = float(np.interp(1.001 * veq, vv, ee))
-                a, b = sorted((e_lo, e_hi))
-                on_break = a <= E <= b
+    if curve is not None and model is not None:
+        veq = curve.equivalence_volume_mL
+        try:
+            # exact inverse: the titrant volume at which the potential
+            # equals the transition potential
+            v_end = cv.volume_at_potential(model, E)
+            err = 100.0 * (v_end - veq) / veq
+        except Exception:
+            note = (
+                f"the transition potential ({E:.3f} V vs SHE) is not reached on the part of the"
+                " curve the model can define"
+            )
+        try:
+            e_lo = cv.potential_at(model, 0.999 * veq)
+            e_hi = cv.potential_at(model, 1.001 * veq)
+            a, b = sorted((e_lo, e_hi))
+            on_break = a <= E <= b
+        except Exception:
+            on_break = None
     return IndicatorInfo(ref, ind.name, ind.kind, E, rng, rng_ref, err, on_break, note)
-
-
-def _exact_indicator_error(rec: MethodRecord, E: float, curve: CurveInfo, approx: float) -> float:
-    """Refine the interpolated end-point error with the exact inverse
-    (volume at a given potential) when the curve module provides it."""
-    return approx
 
 
 def _budget(
