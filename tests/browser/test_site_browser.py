@@ -219,3 +219,19 @@ def test_works_from_file_url(page, site_dir):
     # relative links keep working: back to the home page through the header
     page.click(".lab a")
     assert page.url == (site_dir / "index.html").as_uri()
+
+
+def test_readable_without_javascript(browser, base_url, demo_collection):
+    col, _ = demo_collection
+    ctx = browser.new_context(java_script_enabled=False)
+    pg = ctx.new_page()
+    pg.goto(base_url + "index.html")
+    assert pg.locator(".analyte-group .method-item:visible").count() == len(_status(col, "approved"))
+    assert not pg.locator(".filters").is_visible()
+    assert "needs JavaScript" in pg.inner_text("#search-count")
+    pg.goto(base_url + "methods/iron-ii-ceric/index.html")
+    assert pg.locator("section.hazards").is_visible()
+    assert pg.locator("figure.plot svg").is_visible()
+    # the worked result is in the page itself, not computed by the script
+    assert pg.inner_text("#calc-result") == pg.inner_text("#worked-result")
+    ctx.close()
