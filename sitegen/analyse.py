@@ -491,7 +491,9 @@ def analyse_method(
                     )
                 else:
                     fa, fe = chain.back_titration_ratio(
-                        parsed_reactions, analyte_species, parse_species(excess_species),
+                        parsed_reactions,
+                        analyte_species,
+                        parse_species(excess_species),
                         parse_species(titrant_species),
                     )
                     factor_derived, excess_derived = fa * conv, fe
@@ -600,28 +602,39 @@ def _worked_result(
     sample_path = ("calculation", "worked_example", "sample")
     if calc.kind is CalculationKind.TITRANT_CONCENTRATION:
         if sample.unit != "g":
-            out.add("bad-unit", sample_path, "a standardisation weighs its primary standard:"
-                    " give the sample as a mass")
+            out.add(
+                "bad-unit",
+                sample_path,
+                "a standardisation weighs its primary standard: give the sample as a mass",
+            )
             return None
         std = next((u.ref for u in rec.reagents if u.role.value == "primary-standard"), None)
         if std and std in reagents and reagents[std].record.purity is not None:
             purity = reagents[std].record.purity.value / 100.0
         x["m"], x["P"] = sample.value, purity
-        inputs += [("m", "mass of primary standard", sample.value, "g"),
-                   ("P", "purity of primary standard", purity, "")]
+        inputs += [
+            ("m", "mass of primary standard", sample.value, "g"),
+            ("P", "purity of primary standard", purity, ""),
+        ]
         base = "mol/L"
     else:
         if back:
             xc = rec.titration.excess_concentration
             xv = we.excess_volume or rec.titration.excess_volume
             if xc is None or xv is None or excess_factor is None:
-                out.add("missing-field", ("titration", "mode"), "a back titration needs"
-                        " excess_concentration, excess_volume and an excess factor")
+                out.add(
+                    "missing-field",
+                    ("titration", "mode"),
+                    "a back titration needs"
+                    " excess_concentration, excess_volume and an excess factor",
+                )
                 return None
             x["c_x"], x["V_x"], x["f_x"] = xc.value, xv.value, float(excess_factor)
-            inputs += [("c_x", "excess reagent concentration", xc.value, "mol/L"),
-                       ("V_x", "excess reagent volume", xv.value, "mL"),
-                       ("f_x", "mol excess reagent per mol titrant", float(excess_factor), "")]
+            inputs += [
+                ("c_x", "excess reagent concentration", xc.value, "mol/L"),
+                ("V_x", "excess reagent volume", xv.value, "mL"),
+                ("f_x", "mol excess reagent per mol titrant", float(excess_factor), ""),
+            ]
             kind = "back-" + kind
         if calc.kind is CalculationKind.MASS_FRACTION:
             if sample.unit != "g":
@@ -632,8 +645,11 @@ def _worked_result(
             base = ""
         else:
             if sample.unit != "mL":
-                out.add("bad-unit", sample_path,
-                        "a mass concentration needs the sample as an aliquot volume")
+                out.add(
+                    "bad-unit",
+                    sample_path,
+                    "a mass concentration needs the sample as an aliquot volume",
+                )
                 return None
             x["V_s"] = sample.value
             inputs.append(("V_s", "aliquot volume", sample.value, "mL"))
@@ -642,15 +658,20 @@ def _worked_result(
         unit = ureg.Unit(calc.unit.replace("%", "percent"))
         scale = float(ureg.Quantity(1.0, base).to(unit).magnitude)
     except Exception:
-        out.add("bad-unit", ("calculation", "unit"),
-                f"unit {calc.unit!r} cannot express this result (a {base or 'mass fraction'}"
-                " quantity)")
+        out.add(
+            "bad-unit",
+            ("calculation", "unit"),
+            f"unit {calc.unit!r} cannot express this result (a {base or 'mass fraction'} quantity)",
+        )
         return None
     try:
         value = result_value(kind, x, scale)
     except ZeroDivisionError:
-        out.add("bad-value", ("calculation", "worked_example"),
-                "the worked example divides by zero (sample size or net titrant volume)")
+        out.add(
+            "bad-value",
+            ("calculation", "worked_example"),
+            "the worked example divides by zero (sample size or net titrant volume)",
+        )
         return None
     stated: float | None = None
     decimals = 0
@@ -660,8 +681,11 @@ def _worked_result(
         stated = float(ureg.Quantity(float(number), su).to(unit).magnitude)
         decimals = len(number.split(".")[1]) if "." in number else 0
     except Exception:
-        out.add("bad-value", ("calculation", "worked_example", "result"),
-                f"the stated result {we.result!r} is not a number with a unit like {calc.unit!r}")
+        out.add(
+            "bad-value",
+            ("calculation", "worked_example", "result"),
+            f"the stated result {we.result!r} is not a number with a unit like {calc.unit!r}",
+        )
     # "within its stated rounding": the recomputed value must round to the
     # stated one, i.e. lie within half a unit of its last written decimal.
     agrees = stated is not None and abs(value - stated) <= 0.5 * 10.0**-decimals * (1 + 1e-9)
@@ -713,12 +737,22 @@ def _curve(
     ta, td = parts["titrant"], parts["titrand"]
     tc, dc = rec.couples.titrant, rec.couples.titrand
     titrant = cv.Couple(
-        E0=tc.formal_potential.value, n=ta[5], a=float(ta[2]), b=float(ta[3]), m=float(ta[4]),
-        reversible=tc.reversible, label=tc.half_reaction,
+        E0=tc.formal_potential.value,
+        n=ta[5],
+        a=float(ta[2]),
+        b=float(ta[3]),
+        m=float(ta[4]),
+        reversible=tc.reversible,
+        label=tc.half_reaction,
     )
     titrand = cv.Couple(
-        E0=dc.formal_potential.value, n=td[5], a=float(td[2]), b=float(td[3]), m=float(td[4]),
-        reversible=dc.reversible, label=dc.half_reaction,
+        E0=dc.formal_potential.value,
+        n=td[5],
+        a=float(td[2]),
+        b=float(td[3]),
+        m=float(td[4]),
+        reversible=dc.reversible,
+        label=dc.half_reaction,
     )
     form = "red" if titrand_species == td[1] else "ox"
     partner = rec.titration.partner_concentration
@@ -828,7 +862,10 @@ def _indicator(
 
 
 def _budget(
-    rec: MethodRecord, result: ResultInfo, reagents: Mapping[str, Any], indicator: IndicatorInfo | None
+    rec: MethodRecord,
+    result: ResultInfo,
+    reagents: Mapping[str, Any],
+    indicator: IndicatorInfo | None,
 ) -> Any:
     from .budget import result_budget
 

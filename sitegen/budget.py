@@ -24,9 +24,15 @@ ASSUMPTIONS: dict[str, tuple[float, str]] = {
     "titrant_rel_u": (0.001, "standardised titrant, 0.1 % relative (common practice)"),
     # Analytical balance, readability 0.1 mg, weighing by difference: two
     # readings, each rectangular over ±0.1 mg (common practice).
-    "balance_u_g": (math.sqrt(2) * 0.0001 / math.sqrt(3), "balance 0.1 mg, two readings, rectangular"),
+    "balance_u_g": (
+        math.sqrt(2) * 0.0001 / math.sqrt(3),
+        "balance 0.1 mg, two readings, rectangular",
+    ),
     # End point: one drop of about 0.05 mL, rectangular (common practice).
-    "endpoint_u_mL": (0.05 / math.sqrt(3), "end point, one drop (0.05 mL), rectangular (common practice)"),
+    "endpoint_u_mL": (
+        0.05 / math.sqrt(3),
+        "end point, one drop (0.05 mL), rectangular (common practice)",
+    ),
     # Purity of a primary standard certified as 99.95 ± 0.05 %: rectangular.
     "purity_u": (0.0005 / math.sqrt(3), "purity ±0.05 %, rectangular (common practice)"),
 }
@@ -43,7 +49,9 @@ def _tolerance(kind: str, nominal_mL: float) -> tuple[float, str]:
         # tolerance by volume (common practice for an estimate).
         ref = {"burette": (50.0, 0.05), "pipette": (25.0, 0.03), "flask": (100.0, 0.10)}[kind]
         tol = ref[1] * nominal_mL / ref[0]
-        return u_triangular(tol), f"{kind} {nominal_mL:g} mL, ±{tol:.3g} mL scaled (common practice)"
+        return u_triangular(
+            tol
+        ), f"{kind} {nominal_mL:g} mL, ±{tol:.3g} mL scaled (common practice)"
     std = {"burette": "ISO 385", "pipette": "ISO 648", "flask": "ISO 1042"}[kind]
     return u_triangular(tol), f"{kind} {nominal_mL:g} mL Class A ±{tol:g} mL ({std}), triangular"
 
@@ -78,8 +86,13 @@ def result_budget(rec: Any, result: Any, reagents: Mapping[str, Any]) -> Any:
     if "c_x" in values:
         us["c_x"] = (rel_c * values["c_x"], src_c)
     inputs = [
-        Quantity(name=sym, value=values[sym], u=us[sym][0], unit=units[sym],
-                 source=f"{descs[sym]}: {us[sym][1]}")
+        Quantity(
+            name=sym,
+            value=values[sym],
+            u=us[sym][0],
+            unit=units[sym],
+            source=f"{descs[sym]}: {us[sym][1]}",
+        )
         for sym in values
         if sym in us and us[sym][0] > 0
     ]

@@ -41,26 +41,35 @@ def _parser() -> argparse.ArgumentParser:
     c.add_argument("--format", choices=("text", "json"), default="text")
     c.add_argument("--strict", action="store_true", help="warnings fail too")
     c.add_argument("--profile", default=None, help="named rule set: default, strict, draft")
-    c.add_argument("--today", type=_dt.date.fromisoformat, default=None,
-                   help="date to compare review deadlines with (YYYY-MM-DD)")
+    c.add_argument(
+        "--today",
+        type=_dt.date.fromisoformat,
+        default=None,
+        help="date to compare review deadlines with (YYYY-MM-DD)",
+    )
 
     b = sub.add_parser("build", help="check, then write the site")
     b.add_argument("source", nargs="?", type=Path, default=Path("methods"), metavar="SOURCE")
     b.add_argument("--out", type=Path, default=Path("output"))
     b.add_argument("--jobs", type=int, default=None, help="worker processes (default: CPUs)")
     b.add_argument("--strict", action="store_true", help="warnings fail too")
-    b.add_argument("--keep-going", action="store_true",
-                   help="publish the methods that pass and list the failing ones")
+    b.add_argument(
+        "--keep-going",
+        action="store_true",
+        help="publish the methods that pass and list the failing ones",
+    )
     b.add_argument("--theme", type=Path, default=None, help="a theme folder of your own")
     b.add_argument("--today", type=_dt.date.fromisoformat, default=None)
 
     s = sub.add_parser("schema", help="write the JSON Schema of the record format")
     s.add_argument("--out", type=Path, default=None, help="file to write (default: stdout)")
-    s.add_argument("--kind", choices=("method", "reagent", "indicator", "site", "all"),
-                   default="all")
+    s.add_argument(
+        "--kind", choices=("method", "reagent", "indicator", "site", "all"), default="all"
+    )
 
-    bal = sub.add_parser("balance", help="balance a redox reaction by the half-reaction method",
-                         add_help=False)
+    bal = sub.add_parser(
+        "balance", help="balance a redox reaction by the half-reaction method", add_help=False
+    )
     bal.add_argument("rest", nargs=argparse.REMAINDER)
 
     sub.add_parser("rules", help="list the checker rules and what each checks")
@@ -122,8 +131,7 @@ def _cmd_check(args: argparse.Namespace, out: TextIO, err: TextIO) -> int:
         sel = result.collection.selected
         n_methods = len(sel) if sel is not None else len(result.collection.methods)
         print(
-            f"{n_methods} method(s) checked: {n_err} error(s),"
-            f" {n_warn} warning(s)",
+            f"{n_methods} method(s) checked: {n_err} error(s), {n_warn} warning(s)",
             file=err,
         )
     return 1 if result.errors else 0
@@ -140,14 +148,22 @@ def _cmd_build(args: argparse.Namespace, out: TextIO, err: TextIO) -> int:
     try:
         if build is not None:
             report = build(
-                args.source, args.out, settings=settings, keep_going=args.keep_going,
-                theme=args.theme, jobs=args.jobs, progress=err,
+                args.source,
+                args.out,
+                settings=settings,
+                keep_going=args.keep_going,
+                theme=args.theme,
+                jobs=args.jobs,
+                progress=err,
             )
         else:
             from .build.run import build_site
 
             report = build_site(
-                args.source, args.out, settings=settings, keep_going=args.keep_going,
+                args.source,
+                args.out,
+                settings=settings,
+                keep_going=args.keep_going,
                 theme=args.theme,
             )
     except OutputRefused as exc:
@@ -199,8 +215,9 @@ def _cmd_rules(args: argparse.Namespace, out: TextIO, err: TextIO) -> int:
     return 0
 
 
-def main(argv: Sequence[str] | None = None, out: TextIO | None = None,
-         err: TextIO | None = None) -> int:
+def main(
+    argv: Sequence[str] | None = None, out: TextIO | None = None, err: TextIO | None = None
+) -> int:
     """Run the command line; returns the exit code."""
     out = out or sys.stdout
     err = err or sys.stderr

@@ -161,9 +161,9 @@ class Reagent(_Strict):
     )
     molar_mass_source: str = "IUPAC/CIAAW 2021 abridged standard atomic weights"
     grade: str | None = None
-    purity: Annotated[Measure, BeforeValidator(lambda v: _measure_of(v, "mass_fraction"))] | None = (
-        None
-    )
+    purity: (
+        Annotated[Measure, BeforeValidator(lambda v: _measure_of(v, "mass_fraction"))] | None
+    ) = None
     primary_standard: bool = False
     concentration: Concentration | None = None
     standardised_by: Slug | None = None
@@ -242,7 +242,9 @@ class Couples(_Strict):
 class Conditions(_Strict):
     medium: Text
     hydrogen_ion: Concentration = Field(description="[H+] of the titration medium")
-    temperature: Temperature = Field(default_factory=lambda: parse_measure("25 degC", "temperature"))
+    temperature: Temperature = Field(
+        default_factory=lambda: parse_measure("25 degC", "temperature")
+    )
     reference_electrode: Literal["SHE", "SCE", "Ag/AgCl-sat", "Ag/AgCl-3M"] = "SHE"
 
 

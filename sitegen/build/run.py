@@ -69,9 +69,7 @@ def analyse_all(collection: Collection) -> dict[str, Any]:
 
     rules = load_rules(collection.safety_rules_source)
     return {
-        mid: analyse_method(
-            loaded, collection.reagents, collection.indicators, safety_rules=rules
-        )
+        mid: analyse_method(loaded, collection.reagents, collection.indicators, safety_rules=rules)
         for mid, loaded in sorted(collection.methods.items())
     }
 

@@ -76,10 +76,31 @@ def _write_file(path: Path, data: bytes) -> None:
         fh.write(data)
 
 
-def write_site(out: Path, files: Mapping[str, bytes]) -> None:
+def _hold(path: Path) -> None:
+    """Test hook: ``SITEGEN_TEST_WRITE_DELAY`` seconds between files, so a
+    test can kill a build in the middle of writing."""
+    delay = os.environ.get("SITEGEN_TEST_WRITE_DELAY")
+    if delay:
+        import time
+
+        time.sleep(float(delay))
+
+
+def write_site(
+    out: Path, files: Mapping[str, bytes], reuse: Mapping[str, Path] | None = None
+) -> None:
     """Stage ``files`` beside ``out`` and swap the staged folder in.
 
     Callers must have run :func:`check_output_dir` first.
+
+    Args:
+        out: the output folder.
+        files: relative POSIX path -> bytes.
+        reuse: relative path -> a file of the current output known to hold
+            exactly ``files[path]``; it is hard-linked into the staged
+            folder instead of written (the previous site is never changed
+            in place, so sharing its inodes is safe). Falls back to
+            writing when the link fails.
     """
     out = out.resolve()
     parent = out.parent
@@ -91,16 +112,30 @@ def write_site(out: Path, files: Mapping[str, bytes]) -> None:
             shutil.rmtree(leftover)
     staging.mkdir()
     try:
+        written: list[Path] = []
+        reuse = reuse or {}
         for rel in sorted(files):
             target = (staging / rel).resolve()
             if not target.is_relative_to(staging):
                 raise OutputRefused(f"refusing to write outside the output folder: {rel}")
+            _hold(target)
+            if rel in reuse:
+                target.parent.mkdir(parents=True, exist_ok=True)
+                try:
+                    os.link(reuse[rel], target)
+                    continue
+                except OSError:
+                    pass
             _write_file(target, files[rel])
+            written.append(target)
         _write_file(staging / MARKER, _MARKER_TEXT)
+        written.append(staging / MARKER)
         if (out / ".gitkeep").exists():
             _write_file(staging / ".gitkeep", b"")
-        for d in sorted(p for p in staging.rglob("*") if p.is_file()):
+            written.append(staging / ".gitkeep")
+        for d in written:
             # fsync so that a crash after the swap cannot expose empty files
+            # (hard-linked files are the previous site's, already on disk)
             with open(d, "rb") as fh:
                 os.fsync(fh.fileno())
         if out.exists():

@@ -49,7 +49,9 @@ class RuleInfo:
 RULES: dict[str, RuleInfo] = {}
 
 
-def rule(rule_id: str, scope: Scope = "method") -> Callable[[Callable[..., Any]], Callable[..., Any]]:
+def rule(
+    rule_id: str, scope: Scope = "method"
+) -> Callable[[Callable[..., Any]], Callable[..., Any]]:
     """Register a rule function under ``rule_id``."""
 
     def deco(func: Callable[..., Any]) -> Callable[..., Any]:

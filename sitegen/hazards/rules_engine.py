@@ -224,7 +224,9 @@ def _texts(value: object, path: KeyPath) -> tuple[str, ...]:
     out = []
     for i, v in enumerate(items):
         if isinstance(v, bool) or not isinstance(v, str | int | float) or str(v) == "":
-            raise _Bad("expected text or a list of texts", (*path, i) if isinstance(value, list) else path)
+            raise _Bad(
+                "expected text or a list of texts", (*path, i) if isinstance(value, list) else path
+            )
         out.append(str(v))
     return tuple(out)
 
@@ -239,7 +241,9 @@ def _compile_reagent(spec: object, path: KeyPath) -> Condition:
             raise _Bad(_unknown("reagent field", key, _REAGENT_FIELDS), kp, at_key=True)
         if key in ("formula", "name"):
             rx = _regex(value, kp)
-            checks.append(lambda use, r, rx=rx, key=key: r is not None and bool(rx.search(getattr(r, key))))
+            checks.append(
+                lambda use, r, rx=rx, key=key: r is not None and bool(rx.search(getattr(r, key)))
+            )
         elif key == "role":
             roles = _texts(value, kp)
             checks.append(lambda use, r, roles=roles: use.role.value in roles)
@@ -249,14 +253,20 @@ def _compile_reagent(spec: object, path: KeyPath) -> Condition:
         elif key == "supplies":
             sp = frozenset(_species(s) for s in _texts(value, kp))
             checks.append(
-                lambda use, r, sp=sp: r is not None and r.supplies is not None and _species(r.supplies) in sp
+                lambda use, r, sp=sp: (
+                    r is not None and r.supplies is not None and _species(r.supplies) in sp
+                )
             )
         elif key == "element":
             els = frozenset(_texts(value, kp))
-            checks.append(lambda use, r, els=els: r is not None and bool(els & elements_of(r.formula)))
+            checks.append(
+                lambda use, r, els=els: r is not None and bool(els & elements_of(r.formula))
+            )
         else:  # hazard
             codes = frozenset(normalise(c) for c in _texts(value, kp))
-            checks.append(lambda use, r, codes=codes: r is not None and bool(codes & _hazard_parts(r)))
+            checks.append(
+                lambda use, r, codes=codes: r is not None and bool(codes & _hazard_parts(r))
+            )
 
     def test(record: Any, reagents: Mapping[str, Any]) -> Witnesses | None:
         for i, use in enumerate(record.reagents):
@@ -450,7 +460,9 @@ def parse_rules(text: str, path: str) -> tuple[list[SafetyRule], list[Finding]]:
         return [], [Finding(BAD_RULE, Severity.ERROR, p.message, Span(path, p.line, p.col))]
     data = parsed.data
     if not isinstance(data, dict) or set(data) != {"rules"} or not isinstance(data["rules"], list):
-        return [], [bad("a safety-rules file is a mapping with one key, 'rules', holding a list", ())]
+        return [], [
+            bad("a safety-rules file is a mapping with one key, 'rules', holding a list", ())
+        ]
     rules: list[SafetyRule] = []
     findings: list[Finding] = []
     seen: dict[str, SafetyRule] = {}
@@ -540,7 +552,9 @@ def evaluate(
         witnesses = rule.when.test(record, reagents)
         if witnesses is None:
             continue
-        satisfied = rule.satisfied_by is not None and rule.satisfied_by.test(record, reagents) is not None
+        satisfied = (
+            rule.satisfied_by is not None and rule.satisfied_by.test(record, reagents) is not None
+        )
         out.append(
             Triggered(
                 rule=rule,

@@ -85,7 +85,9 @@ def _read(path: Path, cwd: Path, col: Collection) -> Source | None:
     src = read_source(path, _shown(path, cwd))
     if isinstance(src, SourceProblem):
         col.findings.append(
-            Finding(src.rule, Severity.ERROR, src.message, Span(_shown(path, cwd), src.line, src.col))
+            Finding(
+                src.rule, Severity.ERROR, src.message, Span(_shown(path, cwd), src.line, src.col)
+            )
         )
         return None
     col.sources[src.path] = src
@@ -98,7 +100,9 @@ def _files(folder: Path) -> list[Path]:
     return sorted(p for p in folder.iterdir() if p.suffix in {".yaml", ".yml"} and p.is_file())
 
 
-def load_collection(root: Path, only: Iterable[Path] | None = None, cwd: Path | None = None) -> Collection:
+def load_collection(
+    root: Path, only: Iterable[Path] | None = None, cwd: Path | None = None
+) -> Collection:
     """Load a source folder.
 
     Args:
@@ -163,7 +167,11 @@ def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
 
 
 def _load_kind(
-    files: list[Path], model: type[Any], target: dict[str, Loaded], cwd: Path, col: Collection,
+    files: list[Path],
+    model: type[Any],
+    target: dict[str, Loaded],
+    cwd: Path,
+    col: Collection,
     folder: str = "",
 ) -> None:
     failed = col.unloadable.setdefault(folder, set())
@@ -225,7 +233,9 @@ def _load_glossary(root: Path, cwd: Path, col: Collection) -> None:
     try:
         parsed = parse_yaml(src.text)
     except YamlProblem as p:
-        col.findings.append(Finding(p.rule, Severity.ERROR, p.message, Span(src.path, p.line, p.col)))
+        col.findings.append(
+            Finding(p.rule, Severity.ERROR, p.message, Span(src.path, p.line, p.col))
+        )
         return
     data = parsed.data
     if not isinstance(data, dict) or not all(

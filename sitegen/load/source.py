@@ -63,7 +63,9 @@ def decode(path: str, raw: bytes) -> Source | SourceProblem:
         off = raw.index(b"\x00")
         line = raw.count(b"\n", 0, off) + 1
         col = off - (raw.rfind(b"\n", 0, off) + 1) + 1
-        return SourceProblem("binary-file", "file holds NUL bytes; it is not a text record", line, col)
+        return SourceProblem(
+            "binary-file", "file holds NUL bytes; it is not a text record", line, col
+        )
     try:
         text = raw.decode("utf-8")
     except UnicodeDecodeError as exc:

@@ -102,7 +102,7 @@ def parse_yaml(text: str) -> Parsed:
     except yaml.YAMLError as exc:
         mark = getattr(exc, "problem_mark", None)
         pos = getattr(exc, "position", None)
-        line, col = ((mark.line + 1, mark.column + 1) if mark else _offset_pos(text, pos))
+        line, col = (mark.line + 1, mark.column + 1) if mark else _offset_pos(text, pos)
         raise YamlProblem("yaml-syntax", f"malformed YAML: {_reason(exc)}", line, col) from None
     try:
         try:
@@ -198,7 +198,10 @@ def _walk(node: Node, path: KeyPath, out: Parsed, loader: _Loader, depth: int) -
     if node.tag not in _ALLOWED_TAGS:
         line, col = _pos(node)
         raise YamlProblem(
-            "yaml-tag", f"YAML tag {node.tag!r} is not allowed in records; write plain text", line, col
+            "yaml-tag",
+            f"YAML tag {node.tag!r} is not allowed in records; write plain text",
+            line,
+            col,
         )
     try:
         value = loader.construct_object(node, deep=True)

@@ -77,7 +77,10 @@ def burette_range(ctx: Context, loaded: Any, analysis: Any) -> Iterator[Finding]
     cap = rec.titration.burette.value
     for path, vol in (
         (("titration", "expected_volume"), rec.titration.expected_volume.value),
-        (("calculation", "worked_example", "titrant_volume"), rec.calculation.worked_example.titrant_volume.value),
+        (
+            ("calculation", "worked_example", "titrant_volume"),
+            rec.calculation.worked_example.titrant_volume.value,
+        ),
     ):
         if vol > cap:
             yield ctx.finding(
@@ -206,7 +209,7 @@ def standardisation_mismatch(ctx: Context) -> Iterator[Finding]:
                     )
         if nominal is None:
             continue
-        for mid, m in col.methods.items():
+        for m in col.methods.values():
             t = m.record.titration
             if t.titrant != rid or m.record.titration.mode is TitrationMode.STANDARDISATION:
                 continue

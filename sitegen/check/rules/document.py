@@ -204,7 +204,9 @@ def _components(graph: dict[str, list[tuple[str, Any]]]) -> list[list[str]]:
     return comps
 
 
-def _cycle_from(start: str, members: set[str], graph: dict[str, list[tuple[str, Any]]]) -> list[str]:
+def _cycle_from(
+    start: str, members: set[str], graph: dict[str, list[tuple[str, Any]]]
+) -> list[str]:
     """One cycle through ``start`` inside its component (breadth-first, so
     the shortest one, with ties broken by id)."""
     prev: dict[str, str] = {}
@@ -246,6 +248,7 @@ def supersedes_cycle(ctx: Context) -> Iterator[Finding]:
             "supersedes-cycle",
             loaded,
             path,
-            "supersedes links form a cycle: " + " -> ".join(cycle)
+            "supersedes links form a cycle: "
+            + " -> ".join(cycle)
             + " (read 'a -> b' as 'a supersedes b')",
         )

@@ -66,7 +66,10 @@ def missing_link(ctx: Context, loaded, analysis) -> Iterator[Finding]:  # type: 
     methods = ctx.collection.methods
     if rec.successor is not None and rec.successor not in methods:
         yield ctx.finding(
-            "missing-successor", loaded, ("successor",), f"successor {rec.successor!r} does not exist"
+            "missing-successor",
+            loaded,
+            ("successor",),
+            f"successor {rec.successor!r} does not exist",
         )
     for i, old in enumerate(rec.supersedes):
         if old not in methods:
