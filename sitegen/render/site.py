@@ -80,14 +80,18 @@ def render_method_files(
 
 
 def _static(theme_dir: Path) -> dict[str, bytes]:
-    root = Path(theme_dir) / "static"
+    from .env import theme_layers
+
     out: dict[str, bytes] = {}
-    if not root.is_dir():
-        return out
-    for p in sorted(root.rglob("*")):
-        if p.is_file() and not p.name.startswith("."):
-            out["static/" + p.relative_to(root).as_posix()] = p.read_bytes()
-    return out
+    # default theme first, so the lab's files replace same-named ones
+    for layer in reversed(theme_layers(theme_dir)):
+        root = layer / "static"
+        if not root.is_dir():
+            continue
+        for p in sorted(root.rglob("*")):
+            if p.is_file() and not p.name.startswith("."):
+                out["static/" + p.relative_to(root).as_posix()] = p.read_bytes()
+    return dict(sorted(out.items()))
 
 
 def render_shared(
