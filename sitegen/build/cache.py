@@ -1,0 +1,230 @@
+"""A content-hash cache that survives between builds.
+
+Every entry is addressed by a sha256 key computed from *everything* the
+entry was made from (record texts, the code, the theme...), never by a
+name or a time, so an entry can be stale only if its key is wrong: a
+changed input gives a different key, and the old entry is simply never
+asked for again.
+
+Two stores live under one folder:
+
+* ``entries/``: pickled values (a loaded record, an analysis, the list of
+  a method's rendered files) under a key;
+* ``blobs/``: file contents under their own sha256, so a file rendered
+  once is stored once however many builds name it.
+
+Every write goes to a temporary file in the same folder and is moved in
+place with :func:`os.replace`, so a reader sees the old entry or the new
+one, never half of one; a killed build leaves at worst a stray temporary
+file. A damaged entry (unreadable pickle, blob whose digest does not
+match) reads as a miss.
+
+The pickles are trusted: the cache folder must be the user's own, like
+any bytecode cache. It is never inside the output folder, which a build
+replaces wholesale.
+"""
+
+from __future__ import annotations
+
+__all__ = [
+    "FORMAT",
+    "Cache",
+    "code_digest",
+    "default_cache_dir",
+    "digest_bytes",
+    "dumps",
+    "key_of",
+    "loads",
+    "tree_digest",
+]
+
+import contextlib
+import functools
+import hashlib
+import io
+import os
+import pickle
+import tempfile
+import types
+from pathlib import Path
+from typing import Any
+
+#: Bumped when the layout or the meaning of entries changes.
+FORMAT = "sitegen-cache-1"
+
+_PACKAGE = Path(__file__).resolve().parents[1]
+
+
+class LocalFunctionCalled(RuntimeError):
+    """A function restored from the cache was called; see :func:`dumps`."""
+
+
+def _local_function(qualname: str) -> types.FunctionType:
+    def unavailable(*args: Any, **kwargs: Any) -> Any:
+        raise LocalFunctionCalled(
+            f"{qualname} was computed before the value was cached and cannot be called again"
+        )
+
+    unavailable.__qualname__ = qualname
+    return unavailable  # type: ignore[return-value]
+
+
+class _Pickler(pickle.Pickler):
+    def reducer_override(self, obj: Any) -> Any:
+        # Values may hold closures (a compiled condition that already did
+        # its work, say); those cannot be pickled by reference. They are
+        # replaced by a stub that raises if anyone calls it, so every other
+        # field still round-trips exactly.
+        if isinstance(obj, types.FunctionType) and "<locals>" in obj.__qualname__:
+            return _local_function, (obj.__qualname__,)
+        return NotImplemented
+
+
+def dumps(value: Any) -> bytes:
+    """Pickle ``value`` (local functions become call-raising stubs)."""
+    buf = io.BytesIO()
+    _Pickler(buf, protocol=pickle.HIGHEST_PROTOCOL).dump(value)
+    return buf.getvalue()
+
+
+def loads(data: bytes) -> Any:
+    """The value of :func:`dumps` bytes."""
+    return pickle.loads(data)
+
+
+def digest_bytes(data: bytes) -> str:
+    """sha256 hex digest of ``data``."""
+    return hashlib.sha256(data).hexdigest()
+
+
+def key_of(*parts: object) -> str:
+    """A key from parts; each part is written with its length so that
+    ``("ab", "c")`` and ``("a", "bc")`` give different keys."""
+    h = hashlib.sha256()
+    for part in parts:
+        b = part if isinstance(part, bytes) else repr(part).encode("utf-8")
+        h.update(str(len(b)).encode("ascii") + b":")
+        h.update(b)
+    return h.hexdigest()
+
+
+def tree_digest(folder: Path, skip_hidden: bool = True) -> str:
+    """Digest of every file under ``folder``: relative paths and bytes.
+
+    A missing folder has a digest too (of nothing), so that creating it
+    later changes the digest.
+    """
+    h = hashlib.sha256()
+    if folder.is_dir():
+        for p in sorted(folder.rglob("*")):
+            rel = p.relative_to(folder)
+            if skip_hidden and any(part.startswith(".") for part in rel.parts):
+                continue
+            if "__pycache__" in rel.parts or p.suffix == ".pyc" or not p.is_file():
+                continue
+            data = p.read_bytes()
+            h.update(f"{rel.as_posix()}\0{len(data)}\0".encode())
+            h.update(data)
+    return h.hexdigest()
+
+
+@functools.cache
+def code_digest(version: str) -> str:
+    """Digest of the generator: its version and every file of the
+    installed ``sitegen`` package (sources and package data), so that any
+    code change invalidates every entry.
+
+    Cached per process: the package does not change under a running build.
+    """
+    return key_of(FORMAT, version, tree_digest(_PACKAGE))
+
+
+def default_cache_dir(source: Path, out: Path) -> Path:
+    """Where the cache lives unless told: ``.sitegen-cache/`` beside the
+    source folder (in its parent), or under the current folder when that
+    place is inside the output folder (which every build replaces)."""
+    beside = source.resolve().parent / ".sitegen-cache"
+    if beside.is_relative_to(out.resolve()):
+        return Path.cwd().resolve() / ".sitegen-cache"
+    return beside
+
+
+class Cache:
+    """The cache folder.
+
+    Args:
+        root: the folder (created on first write).
+    """
+
+    def __init__(self, root: Path) -> None:
+        self.root = Path(root)
+
+    def __repr__(self) -> str:
+        return f"Cache({str(self.root)!r})"
+
+    # -- pickled entries --------------------------------------------------
+
+    def _entry(self, kind: str, key: str) -> Path:
+        return self.root / "entries" / kind / key[:2] / f"{key}.pickle"
+
+    def get(self, kind: str, key: str) -> Any | None:
+        """The value stored under ``kind``/``key``, or None."""
+        try:
+            data = self._entry(kind, key).read_bytes()
+        except OSError:
+            return None
+        try:
+            return pickle.loads(data)
+        except Exception:
+            # A damaged or incompatible entry is a miss; it is overwritten
+            # by the next put.
+            return None
+
+    def put(self, kind: str, key: str, value: Any) -> None:
+        """Store ``value`` under ``kind``/``key`` atomically."""
+        _atomic_write(self._entry(kind, key), dumps(value))
+
+    # -- content-addressed blobs -----------------------------------------
+
+    def _blob(self, digest: str) -> Path:
+        return self.root / "blobs" / digest[:2] / digest
+
+    def put_blob(self, data: bytes, digest: str | None = None, force: bool = False) -> str:
+        """Store file contents; returns their sha256 digest.
+
+        A blob already stored is kept (same digest, same bytes) unless
+        ``force``, which replaces a damaged one.
+        """
+        digest = digest or digest_bytes(data)
+        path = self._blob(digest)
+        if force or not path.is_file():
+            _atomic_write(path, data)
+        return digest
+
+    def get_blob(self, digest: str) -> bytes | None:
+        """The contents stored under ``digest``, checked against it; None
+        when missing or damaged."""
+        try:
+            data = self._blob(digest).read_bytes()
+        except OSError:
+            return None
+        if digest_bytes(data) != digest:
+            return None
+        return data
+
+    def has_blob(self, digest: str) -> bool:
+        """Whether a blob is stored (not verified; :meth:`get_blob` is)."""
+        return self._blob(digest).is_file()
+
+
+def _atomic_write(path: Path, data: bytes) -> None:
+    path.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=path.suffix)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+        os.replace(tmp, path)
+    except BaseException:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise

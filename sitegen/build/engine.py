@@ -1,0 +1,924 @@
+"""The build engine: the stages of :mod:`sitegen.build.run`, cached by
+content and spread over worker processes.
+
+What is computed, and when:
+
+1. *Whole-build key.* The digest of every file under the source folder,
+   the theme, the code, the settings and the build date. When the cache
+   holds a finished build under that key and the output folder still
+   holds exactly that build (its manifest), nothing else happens: no
+   record is parsed and no plotting or YAML library is imported.
+2. *Load.* Each record file is validated once per content: ``(digest ->
+   Loaded)`` entries skip YAML and pydantic for unchanged files.
+3. *Analyse* (worker pool). Keyed by the method record's text and the
+   texts of every reagent and indicator record it names, directly or
+   through those records.
+4. *Check.* Every rule, every time, over the whole collection: rules with
+   collection scope look across records, and the rules are cheap next to
+   the chemistry.
+5. *Render* (worker pool). A method's own files are keyed by its analysis
+   key, its findings, the records it names (other methods included: a
+   successor, a standardisation), the theme, site.yaml, the glossary and
+   the render options. Shared pages (home, reagents, quality...) are
+   rendered every time.
+6. *Links.* Every page's ids and links are extracted once per content;
+   the check itself runs over those summaries.
+7. *Write.* Only when the file set differs from the output's manifest;
+   unchanged files are hard-linked from the previous output into the
+   staged folder (:func:`sitegen.build.write.write_site`).
+
+Output never depends on ``jobs``: every stage's results are gathered by
+method id, in sorted order.
+"""
+
+from __future__ import annotations
+
+__all__ = ["MANIFEST", "build"]
+
+import json
+import math
+import os
+import re
+import sys
+import time
+from collections.abc import Iterable, Iterator, Mapping, Sequence
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any, TextIO
+
+from ..check.registry import Settings
+from ..errors import Finding, Severity, Span
+from .cache import (
+    FORMAT,
+    Cache,
+    code_digest,
+    default_cache_dir,
+    digest_bytes,
+    dumps,
+    key_of,
+    loads,
+    tree_digest,
+)
+from .run import BuildReport, CheckResult, default_theme
+from .write import check_output_dir
+
+#: The output folder's manifest: every file's sha256 and size, and the
+#: digest of the whole set. A build whose file set has the same digest
+#: does not rewrite the folder.
+MANIFEST = ".sitegen-manifest.json"
+
+#: Strings in a record that may name another record (the id grammar of
+#: the record format).
+_ID_LIKE = re.compile(r"[a-z0-9][a-z0-9-]*\Z")
+
+#: Below this many methods to compute, a worker pool costs more than it
+#: saves (each worker imports numpy, jinja2 and matplotlib again).
+_POOL_MIN = 4
+
+
+# ----------------------------------------------------------------------------
+# Progress
+
+
+class _Progress:
+    """One updating status line on a terminal; silent otherwise (logs and
+    pipes get only the final summary, which the CLI prints)."""
+
+    def __init__(self, stream: TextIO | None) -> None:
+        self.stream = stream if stream is not None and _isatty(stream) else None
+        self._last = 0.0
+        self._shown = False
+
+    def update(self, stage: str, done: int, total: int) -> None:
+        if self.stream is None:
+            return
+        now = time.monotonic()
+        if done < total and now - self._last < 0.1:
+            return
+        self._last = now
+        self.stream.write(f"\r\x1b[K{stage}: {done}/{total}")
+        self.stream.flush()
+        self._shown = True
+
+    def done(self) -> None:
+        if self.stream is not None and self._shown:
+            self.stream.write("\r\x1b[K")
+            self.stream.flush()
+            self._shown = False
+
+
+def _isatty(stream: TextIO) -> bool:
+    try:
+        return bool(stream.isatty())
+    except (AttributeError, ValueError):
+        return False
+
+
+# ----------------------------------------------------------------------------
+# Snapshot of a finished build (the no-change path)
+
+
+@dataclass
+class SourcesOnly:
+    """What a report of a cached build carries instead of a loaded
+    collection: the sources that findings point into (for the caret
+    printer), without the record types."""
+
+    root: Path
+    sources: dict[str, Any] = field(default_factory=dict)
+    methods: dict[str, Any] = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class _Snapshot:
+    """The cached outcome of one whole build."""
+
+    written: bool
+    findings: tuple[Finding, ...]
+    sources: dict[str, Any]
+    method_ids: tuple[str, ...]
+    excluded: tuple[tuple[str, str], ...]
+    manifest: dict[str, tuple[str, int]]
+    digest: str
+
+
+def _manifest_digest(manifest: Mapping[str, tuple[str, int]]) -> str:
+    return key_of(sorted(manifest.items()))
+
+
+def _read_manifest(out: Path) -> dict[str, Any] | None:
+    try:
+        data = json.loads((out / MANIFEST).read_text("utf-8"))
+    except (OSError, ValueError):
+        return None
+    return data if isinstance(data, dict) else None
+
+
+def _output_holds(out: Path, manifest: Mapping[str, tuple[str, int]], digest: str) -> bool:
+    """Whether ``out`` holds the file set of ``manifest``: its recorded
+    digest matches and every file is there with its size (a cheap guard
+    against hand-deleted or truncated files)."""
+    recorded = _read_manifest(out)
+    if recorded is None or recorded.get("digest") != digest:
+        return False
+    for rel, (_sha, size) in manifest.items():
+        try:
+            if (out / rel).stat().st_size != size:
+                return False
+        except OSError:
+            return False
+    return True
+
+
+def _manifest_bytes(manifest: Mapping[str, tuple[str, int]], digest: str) -> bytes:
+    body = {
+        "digest": digest,
+        "files": {rel: [sha, size] for rel, (sha, size) in sorted(manifest.items())},
+    }
+    return (json.dumps(body, indent=1, sort_keys=True) + "\n").encode("utf-8")
+
+
+# ----------------------------------------------------------------------------
+# Dependencies between records
+
+
+def _strings(data: Any) -> Iterator[str]:
+    """Every string value of a parsed YAML document."""
+    stack = [data]
+    while stack:
+        x = stack.pop()
+        if isinstance(x, str):
+            yield x
+        elif isinstance(x, dict):
+            stack.extend(x.values())
+        elif isinstance(x, list | tuple):
+            stack.extend(x)
+
+
+def _named(loaded: Any) -> set[str]:
+    data = getattr(getattr(loaded, "parsed", None), "data", None)
+    return {s.strip() for s in _strings(data) if _ID_LIKE.match(s.strip())}
+
+
+class _Deps:
+    """Which records a method names, directly or through the reagent and
+    indicator records it names.
+
+    A string that looks like an id is recorded with what it names now
+    (nothing, a reagent, an indicator, a method), so adding or removing a
+    record under that id changes the key as well as editing it.
+    """
+
+    def __init__(self, collection: Any) -> None:
+        self.col = collection
+        self._named: dict[tuple[str, str], set[str]] = {}
+
+    def _names_of(self, kind: str, rid: str, loaded: Any) -> set[str]:
+        k = (kind, rid)
+        if k not in self._named:
+            self._named[k] = _named(loaded)
+        return self._named[k]
+
+    def closure(self, mid: str) -> tuple[set[str], set[str]]:
+        """(every id-like string reached, method ids among them)."""
+        col = self.col
+        seen: set[str] = set()
+        todo = sorted(self._names_of("method", mid, col.methods[mid]))
+        while todo:
+            s = todo.pop()
+            if s in seen:
+                continue
+            seen.add(s)
+            for kind, table in (("reagent", col.reagents), ("indicator", col.indicators)):
+                if s in table:
+                    todo.extend(self._names_of(kind, s, table[s]) - seen)
+        seen.discard(mid)
+        return seen, {s for s in seen if s in col.methods}
+
+    def record_parts(self, names: Iterable[str]) -> list[tuple[str, str, str]]:
+        """(id, kind, digest-or-'absent') for reagents and indicators."""
+        col = self.col
+        parts = []
+        for s in sorted(names):
+            for kind, table in (("reagent", col.reagents), ("indicator", col.indicators)):
+                lo = table.get(s)
+                parts.append((s, kind, lo.source.path + ":" + lo.source.digest if lo else "absent"))
+        return parts
+
+
+# ----------------------------------------------------------------------------
+# Worker side. A worker process holds the collection it was forked with
+# (ProcessPoolExecutor's initializer); each task names methods by id, so
+# only ids, analyses and file digests cross the process boundary.
+
+
+@dataclass(frozen=True)
+class _WorkerState:
+    collection: Any
+    cache_root: Path
+    #: the safety rule set (built-in plus the lab's own), compiled once
+    safety_rules: Any = None
+
+
+_STATE: list[_WorkerState] = []  # one entry inside a worker process
+
+
+def _init_worker(state: _WorkerState) -> None:
+    _STATE[:] = [state]
+
+
+def _analyse_many(state: _WorkerState, items: Sequence[tuple[str, str]]) -> list[tuple[str, Any]]:
+    from ..analyse import analyse_method
+
+    col = state.collection
+    cache = Cache(state.cache_root)
+    out = []
+    for mid, key in items:
+        analysis = analyse_method(
+            col.methods[mid], col.reagents, col.indicators, safety_rules=state.safety_rules
+        )
+        cache.put("analysis", key, analysis)
+        out.append((mid, analysis))
+    return out
+
+
+def _link_summary(data: bytes) -> tuple[tuple[str, ...], tuple[str, ...]]:
+    """The element ids and link targets of an HTML page, as the link
+    checker reads them."""
+    # the checker's own parser, so that a summary says exactly what it
+    # would have found in the page
+    from ..render.links import _parse
+
+    p = _parse(data)
+    return tuple(sorted(p.ids)), tuple(sorted(set(p.refs)))
+
+
+@dataclass(frozen=True)
+class _Rendered:
+    """A method's rendered files as the cache keeps them: path -> (sha256,
+    size), and the link summary of each HTML page."""
+
+    files: dict[str, tuple[str, int]]
+    links: dict[str, tuple[tuple[str, ...], tuple[str, ...]]]
+
+
+def _render_many(
+    state: _WorkerState, items: Sequence[tuple[str, str, Any, list[Finding]]], options: Any
+) -> list[tuple[str, _Rendered]]:
+    from ..render.site import render_method_files
+
+    col = state.collection
+    cache = Cache(state.cache_root)
+    out = []
+    for mid, key, analysis, own in items:
+        files = render_method_files(mid, col, analysis, own, options)
+        entry = _store_files(cache, files)
+        cache.put("render", key, entry)
+        out.append((mid, entry))
+    return out
+
+
+def _store_files(cache: Cache, files: Mapping[str, bytes]) -> _Rendered:
+    meta: dict[str, tuple[str, int]] = {}
+    links = {}
+    for rel, data in sorted(files.items()):
+        meta[rel] = (cache.put_blob(data), len(data))
+        if rel.endswith(".html"):
+            links[rel] = _link_summary(data)
+    return _Rendered(meta, links)
+
+
+def _rerender(cache: Cache, collection: Any, mid: str, key: str, analysis: Any,
+              own: list[Finding], options: Any) -> None:
+    from ..render.site import render_method_files
+
+    files = render_method_files(mid, collection, analysis, own, options)
+    for data in files.values():
+        cache.put_blob(data, force=True)
+    cache.put("render", key, _store_files(cache, files))
+
+
+def _pool_call(func: Any, payload: bytes) -> bytes:
+    # arguments and results travel as cache pickles: they may hold local
+    # functions, which the standard pickler refuses (see cache.dumps)
+    return dumps(func(_STATE[0], *loads(payload)))
+
+
+# ----------------------------------------------------------------------------
+# Running tasks in-process or in a pool
+
+
+class _Runner:
+    """Runs per-method tasks: in this process for ``jobs == 1`` (or few
+    tasks), else in a process pool created on first use and shared by the
+    analyse and render stages."""
+
+    def __init__(self, jobs: int, state: _WorkerState, progress: _Progress) -> None:
+        self.jobs = max(1, jobs)
+        self.state = state
+        self.progress = progress
+        self._pool: Any = None
+
+    def _executor(self) -> Any:
+        if self._pool is None:
+            import multiprocessing as mp
+            from concurrent.futures import ProcessPoolExecutor
+
+            # fork hands the collection to the workers without pickling it;
+            # elsewhere it is pickled once per worker
+            methods = mp.get_all_start_methods()
+            ctx = mp.get_context("fork" if "fork" in methods else None)
+            self._pool = ProcessPoolExecutor(
+                max_workers=self.jobs, mp_context=ctx, initializer=_init_worker,
+                initargs=(self.state,),
+            )
+        return self._pool
+
+    def map(self, stage: str, func: Any, items: list[Any], *extra: Any) -> dict[str, Any]:
+        """``func(state, chunk, *extra)`` over chunks of ``items``; results
+        (id, value) gathered into a dict sorted by id."""
+        total = len(items)
+        results: dict[str, Any] = {}
+        if self.jobs == 1 or total < _POOL_MIN:
+            step = max(1, min(16, total))
+            for i in range(0, total, step):
+                for mid, value in func(self.state, items[i : i + step], *extra):
+                    results[mid] = value
+                self.progress.update(stage, len(results), total)
+            return dict(sorted(results.items()))
+        # Several chunks per worker balance the load; a chunk of a few
+        # methods keeps the pickling of arguments and results small.
+        size = max(1, min(32, math.ceil(total / (self.jobs * 4))))
+        pool = self._executor()
+        futures = [
+            pool.submit(_pool_call, func, dumps((items[i : i + size], *extra)))
+            for i in range(0, total, size)
+        ]
+        from concurrent.futures import as_completed
+
+        for fut in as_completed(futures):
+            for mid, value in loads(fut.result()):
+                results[mid] = value
+            self.progress.update(stage, len(results), total)
+        return dict(sorted(results.items()))
+
+    def close(self) -> None:
+        if self._pool is not None:
+            self._pool.shutdown(wait=True, cancel_futures=True)
+            self._pool = None
+
+
+# ----------------------------------------------------------------------------
+# Load, with a per-file cache
+
+
+def _load(root: Path, cwd: Path, cache: Cache, code: str) -> Any:
+    """The collection, as :func:`sitegen.load.collection.load_collection`
+    builds it, with each record validated at most once per content."""
+    from ..load import collection as lc
+    from ..load.records import load_text
+
+    col = lc.Collection(root=root)
+    site = root / "site.yaml"
+    src = lc._read(site, cwd, col)
+    if src is not None:
+        from ..model import SiteConfig
+
+        loaded, findings = _cached_load(cache, code, SiteConfig, src, load_text)
+        col.site = loaded
+        col.findings.extend(findings)
+    lc._load_glossary(root, cwd, col)
+    sr = root / "safety-rules.yaml"
+    if sr.is_file():
+        col.safety_rules_source = lc._read(sr, cwd, col)
+    targets = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}
+    for folder, model in lc.KINDS.items():
+        target = targets[folder]
+        for path in lc._files(root / folder):
+            src = lc._read(path, cwd, col)
+            if src is None:
+                continue
+            loaded, findings = _cached_load(cache, code, model, src, load_text)
+            col.findings.extend(findings)
+            if loaded is None:
+                continue
+            rid = loaded.record.id
+            if rid != path.stem:
+                col.findings.append(
+                    Finding(
+                        "id-mismatch",
+                        Severity.ERROR,
+                        f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
+                        loaded.span("id"),
+                    )
+                )
+                continue
+            if rid in target:
+                col.findings.append(
+                    Finding(
+                        "duplicate-id",
+                        Severity.ERROR,
+                        f"id {rid!r} is already used by {target[rid].source.path}",
+                        loaded.span("id"),
+                    )
+                )
+                continue
+            target[rid] = loaded
+    return col
+
+
+def _cached_load(cache: Cache, code: str, model: Any, src: Any, load_text: Any) -> Any:
+    key = key_of("loaded", code, model.__name__, src.path, src.digest)
+    hit = cache.get("loaded", key)
+    # the Source inside a cached Loaded must be this very text
+    if hit is not None and (hit[0] is None or hit[0].source == src):
+        return hit
+    value = load_text(model, src)
+    cache.put("loaded", key, value)
+    return value
+
+
+# ----------------------------------------------------------------------------
+# Links
+
+
+def _link_stub(summary: tuple[tuple[str, ...], tuple[str, ...]]) -> bytes:
+    """A tiny HTML document with the same ids and links as a page: the
+    link checker reads only those, so it reports the same for the stub."""
+    from html import escape
+
+    ids, refs = summary
+    parts = [f'<a id="{escape(i, quote=True)}"></a>' for i in ids]
+    parts += [f'<a href="{escape(r, quote=True)}"></a>' for r in refs]
+    return "".join(parts).encode("utf-8")
+
+
+def _broken_links(
+    shared: Mapping[str, bytes],
+    rendered: Mapping[str, _Rendered],
+) -> list[tuple[str, str, str]]:
+    from ..render.links import check_links
+
+    stubs: dict[str, bytes] = dict(shared)
+    for entry in rendered.values():
+        for rel in entry.files:
+            stubs[rel] = _link_stub(entry.links[rel]) if rel in entry.links else b""
+    return check_links(stubs)
+
+
+# ----------------------------------------------------------------------------
+# Write
+
+
+class _BlobDamaged(FileNotFoundError):
+    """A cached file is missing or does not match its digest."""
+
+    def __init__(self, rel: str) -> None:
+        super().__init__(f"the cached copy of {rel} is missing or damaged")
+        self.rel = rel
+
+
+class _LazyFiles(Mapping[str, bytes]):
+    """Path -> bytes for :func:`write_site`, reading method files from the
+    cache only when they are written (the site is never all in memory)."""
+
+    def __init__(self, cache: Cache, shared: Mapping[str, bytes],
+                 manifest: Mapping[str, tuple[str, int]]) -> None:
+        self.cache = cache
+        self.shared = shared
+        self.manifest = manifest
+
+    def __getitem__(self, rel: str) -> bytes:
+        if rel in self.shared:
+            return self.shared[rel]
+        sha, _ = self.manifest[rel]
+        data = self.cache.get_blob(sha)
+        if data is None:
+            raise _BlobDamaged(rel)
+        return data
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self.manifest)
+
+    def __len__(self) -> int:
+        return len(self.manifest)
+
+
+def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
+             manifest: dict[str, tuple[str, int]], digest: str) -> bool:
+    """Write the site unless ``out`` already holds it; True if written."""
+    from .write import write_site
+
+    if _output_holds(out, manifest, digest):
+        return False
+    previous = _read_manifest(out) or {}
+    old_files = previous.get("files")
+    if not isinstance(old_files, dict):
+        old_files = {}
+    reuse: dict[str, Path] = {}
+    for rel, (sha, size) in manifest.items():
+        old = old_files.get(rel)
+        if old == [sha, size]:
+            p = out / rel
+            try:
+                if p.stat().st_size == size:
+                    reuse[rel] = p
+            except OSError:
+                pass
+    files = dict(manifest)
+    files[MANIFEST] = (digest_bytes(b""), 0)  # placeholder, replaced below
+    lazy = _LazyFiles(cache, {**shared, MANIFEST: _manifest_bytes(manifest, digest)}, files)
+    write_site(out, lazy, reuse=reuse)
+    return True
+
+
+# ----------------------------------------------------------------------------
+# The build
+
+
+def _version() -> str:
+    from .run import _version as v
+
+    return v()
+
+
+def _shown(path: Path, cwd: Path) -> str:
+    try:
+        return str(path.resolve().relative_to(cwd))
+    except ValueError:
+        return str(path.resolve())
+
+
+def _record_paths(collection: Any) -> dict[str, str]:
+    """Shown path -> method id of every method record file read, loaded
+    or not (a record that fails to load is a failing method too)."""
+    folder = (Path(collection.root) / "records").resolve()
+    out = {}
+    for shown in collection.sources:
+        p = Path(shown)
+        try:
+            if p.resolve().parent == folder:
+                out[shown] = p.stem
+        except OSError:
+            continue
+    out.update({lo.source.path: mid for mid, lo in collection.methods.items()})
+    return out
+
+
+def _group_by_path(findings: Iterable[Finding]) -> dict[str, list[Finding]]:
+    out: dict[str, list[Finding]] = {}
+    for f in findings:
+        out.setdefault(f.span.path, []).append(f)
+    return out
+
+
+def build(
+    source: Path,
+    out: Path,
+    settings: Settings | None = None,
+    keep_going: bool = False,
+    theme: Path | None = None,
+    jobs: int | None = None,
+    progress: TextIO | None = None,
+    cache_dir: Path | None = None,
+    enabled: Iterable[str] | None = None,
+) -> BuildReport:
+    """Build the site from ``source`` into ``out``, reusing every result
+    whose inputs have not changed.
+
+    Args:
+        source: the source folder (holds site.yaml).
+        out: the output folder; replaced atomically, and only when the new
+            site differs from what it holds.
+        settings: checker settings (the default: :class:`Settings`).
+        keep_going: publish the methods that pass; the failing ones are
+            left out and listed on the quality page.
+        theme: a theme folder (default: the shipped theme).
+        jobs: worker processes for the per-method work (default: the
+            number of CPUs; 1 runs everything in this process).
+        progress: a stream for a one-line progress display, used only when
+            it is a terminal.
+        cache_dir: the cache folder (default: ``$SITEGEN_CACHE``, else
+            ``.sitegen-cache/`` beside the source folder).
+        enabled: rule ids to run (default: all).
+
+    Returns:
+        The report; ``written`` is True when the output holds the new site.
+
+    Raises:
+        OutputRefused: ``out`` may not be written, or the cache folder
+            would be inside it.
+        FileNotFoundError: ``source`` has no site.yaml.
+    """
+    from ..clock import build_date
+    from .write import OutputRefused
+
+    settings = settings or Settings()
+    source, out = Path(source), Path(out)
+    check_output_dir(out, source)
+    if not (source / "site.yaml").is_file():
+        raise FileNotFoundError(f"{source}: no site.yaml; is this a source folder?")
+    theme_dir = Path(theme) if theme is not None else default_theme()
+    env_cache = os.environ.get("SITEGEN_CACHE")
+    cache_root = Path(cache_dir or env_cache or default_cache_dir(source, out)).resolve()
+    if cache_root.is_relative_to(out.resolve()):
+        raise OutputRefused(f"cache folder {cache_root} is inside the output folder {out}")
+    cache = Cache(cache_root)
+    cwd = Path.cwd().resolve()
+    version = _version()
+    code = code_digest(version)
+    date = build_date()
+    enabled_t = tuple(enabled) if enabled is not None else None
+    jobs = jobs or os.cpu_count() or 1
+    ticker = _Progress(progress)
+    times: dict[str, float] = {}
+
+    # -- 1. the whole build, by one key --------------------------------------
+    t0 = time.perf_counter()
+    theme_digest = tree_digest(theme_dir)
+    build_key = key_of(
+        FORMAT, "build", code, tree_digest(source), _shown(source, cwd), theme_digest,
+        repr(settings), keep_going, enabled_t, date.isoformat(),
+    )
+    snap = cache.get("build", build_key)
+    times["scan"] = time.perf_counter() - t0
+    if isinstance(snap, _Snapshot) and (
+        not snap.written
+        or _output_holds(out, snap.manifest, snap.digest)
+        or _restore(out, cache, snap)
+    ):
+        col = SourcesOnly(root=source, sources=dict(snap.sources),
+                          methods=dict.fromkeys(snap.method_ids))
+        result = CheckResult(col, {}, list(snap.findings))  # type: ignore[arg-type]
+        return BuildReport(
+            check=result, written=snap.written, out=out, methods_built=0,
+            methods_cached=len(snap.method_ids) - len(snap.excluded) if snap.written else 0,
+            excluded=list(snap.excluded), stage_seconds=times,
+            files=len(snap.manifest) if snap.written else 0,
+        )
+
+    # -- 2. load -----------------------------------------------------------------
+    t0 = time.perf_counter()
+    collection = _load(source, cwd, cache, code)
+    times["load"] = time.perf_counter() - t0
+
+    from ..hazards.rules_engine import load_rules
+
+    rules = load_rules(collection.safety_rules_source)
+    runner = _Runner(jobs, _WorkerState(collection, cache_root, rules), ticker)
+    try:
+        report, manifest, digest = _build_loaded(
+            collection, out, cache, code, settings, keep_going, theme_dir, theme_digest,
+            enabled_t, date, version, runner, times,
+        )
+    finally:
+        runner.close()
+        ticker.done()
+    # The outcome is a function of the key's inputs, failures included, so
+    # an unchanged rerun of a failing build answers at once too.
+    _remember(cache, build_key, report, collection, manifest, digest)
+    return report
+
+
+def _restore(out: Path, cache: Cache, snap: _Snapshot) -> bool:
+    """Rewrite a cached build's files when the output lost them; False if
+    the cache lost them too (then the build runs again)."""
+    if not all(cache.has_blob(sha) for sha, _ in snap.manifest.values()):
+        return False
+    try:
+        _publish(out, cache, {}, dict(snap.manifest), snap.digest)
+    except _BlobDamaged:
+        return False
+    return True
+
+
+def _remember(cache: Cache, build_key: str, report: BuildReport, collection: Any,
+              manifest: dict[str, tuple[str, int]], digest: str) -> None:
+    findings = tuple(report.check.findings)
+    paths = {f.span.path for f in findings}
+    sources = {p: s for p, s in collection.sources.items() if p in paths}
+    snap = _Snapshot(
+        written=report.written,
+        findings=findings,
+        sources=sources,
+        method_ids=tuple(sorted(set(collection.methods) | {m for m, _ in report.excluded})),
+        excluded=tuple(report.excluded),
+        manifest=dict(manifest),
+        digest=digest,
+    )
+    cache.put("build", build_key, snap)
+
+
+def _build_loaded(
+    collection: Any,
+    out: Path,
+    cache: Cache,
+    code: str,
+    settings: Settings,
+    keep_going: bool,
+    theme_dir: Path,
+    theme_digest: str,
+    enabled: tuple[str, ...] | None,
+    date: Any,
+    version: str,
+    runner: _Runner,
+    times: dict[str, float],
+) -> tuple[BuildReport, dict[str, tuple[str, int]], str]:
+    """Stages 3-7 over a loaded collection; returns the report and the
+    published file set (empty when nothing was published)."""
+    from .run import run_checks
+
+    # -- 3. analyse --------------------------------------------------------------
+    t0 = time.perf_counter()
+    deps = _Deps(collection)
+    # the lab's safety rules apply to every method's hazard summary
+    sr = collection.safety_rules_source
+    safety_key = (sr.path, sr.digest) if sr is not None else None
+    analysis_keys: dict[str, str] = {}
+    closures: dict[str, tuple[set[str], set[str]]] = {}
+    analyses: dict[str, Any] = {}
+    todo: list[tuple[str, str]] = []
+    for mid, loaded in sorted(collection.methods.items()):
+        names, methods = deps.closure(mid)
+        closures[mid] = (names, methods)
+        key = key_of(
+            "analysis", code, loaded.source.path, loaded.source.digest, deps.record_parts(names),
+            safety_key,
+        )
+        analysis_keys[mid] = key
+        hit = cache.get("analysis", key)
+        if hit is not None:
+            analyses[mid] = hit
+        else:
+            todo.append((mid, key))
+    analyses.update(runner.map("analyse", _analyse_many, todo))
+    analyses = dict(sorted(analyses.items()))
+    times["analyse"] = time.perf_counter() - t0
+
+    # -- 4. check ----------------------------------------------------------------
+    t0 = time.perf_counter()
+    findings = run_checks(collection, analyses, settings, enabled)
+    times["check"] = time.perf_counter() - t0
+    result = CheckResult(collection, analyses, findings)
+    report = BuildReport(check=result, out=out, stage_seconds=times)
+    errors = result.errors
+    if errors and keep_going:
+        record_of = _record_paths(collection)
+        failing: dict[str, str] = {}
+        for f in errors:
+            mid = record_of.get(f.span.path)
+            if mid is None:
+                # an error outside a method record stops publication
+                return report, {}, ""
+            failing.setdefault(mid, f"{f.rule}: {f.message}")
+        report.excluded = sorted(failing.items())
+        for mid in failing:
+            collection.methods.pop(mid, None)
+            analyses.pop(mid, None)
+    elif errors:
+        return report, {}, ""
+
+    # -- 5. render ---------------------------------------------------------------
+    t0 = time.perf_counter()
+    from ..render import pages
+    from ..render.site import RenderOptions, render_shared
+
+    options = RenderOptions(
+        theme_dir=theme_dir, build_date=date, generator_version=version,
+        excluded=tuple(report.excluded),
+    )
+    published = pages.published_methods(collection, options)
+    globals_key = key_of(
+        "render-globals", code, theme_digest, repr(options),
+        *(
+            (s.path, s.digest) if s is not None else None
+            for s in (
+                collection.site.source if collection.site is not None else None,
+                collection.glossary_source,
+                collection.safety_rules_source,
+            )
+        ),
+    )
+    findings_at = _group_by_path(findings)
+    rendered: dict[str, _Rendered] = {}
+    render_keys: dict[str, str] = {}
+    own_findings: dict[str, list[Finding]] = {}
+    render_todo: list[tuple[str, str, Any, list[Finding]]] = []
+    for mid, loaded in published.items():
+        analysis = analyses.get(mid)
+        own = pages.method_findings(findings_at.get(loaded.source.path, []), loaded, analysis)
+        names, methods = closures[mid]
+        key = key_of(
+            "render", globals_key, analysis_keys[mid], repr(own),
+            [(m, analysis_keys.get(m), m in published) for m in sorted(methods)],
+            [(s, s in collection.methods) for s in sorted(names)],
+        )
+        render_keys[mid] = key
+        own_findings[mid] = own
+        hit = cache.get("render", key)
+        if isinstance(hit, _Rendered) and all(cache.has_blob(s) for s, _ in hit.files.values()):
+            rendered[mid] = hit
+        else:
+            render_todo.append((mid, key, analysis, own))
+    rendered.update(runner.map("render", _render_many, render_todo, options))
+    rendered = dict(sorted(rendered.items()))
+    built = sorted(m for m, *_ in render_todo)
+    shared = render_shared(collection, analyses, findings, options)
+    times["render"] = time.perf_counter() - t0
+
+    # -- 6. links ----------------------------------------------------------------
+    t0 = time.perf_counter()
+    broken = _broken_links(shared, rendered)
+    times["links"] = time.perf_counter() - t0
+    if broken:
+        report.check.findings.extend(
+            Finding(
+                "broken-link",
+                Severity.ERROR,
+                f"page {page} links to {href!r}: {reason}",
+                Span(str(out / page), 1, 1),
+            )
+            for page, href, reason in broken
+        )
+        return report, {}, ""
+
+    # -- 7. write ------------------------------------------------------------------
+    t0 = time.perf_counter()
+    manifest: dict[str, tuple[str, int]] = {}
+    for entry in rendered.values():
+        manifest.update(entry.files)
+    for rel, data in shared.items():
+        manifest[rel] = (digest_bytes(data), len(data))
+    manifest = dict(sorted(manifest.items()))
+    digest = _manifest_digest(manifest)
+    for rel, data in shared.items():
+        # kept so that a lost output folder is restored without a build
+        cache.put_blob(data, manifest[rel][0])
+    owner = {rel: mid for mid, entry in rendered.items() for rel in entry.files}
+    repaired: set[str] = set()
+    while True:
+        try:
+            wrote = _publish(out, cache, shared, manifest, digest)
+            break
+        except _BlobDamaged as exc:
+            # Someone damaged the cache (the write is staged, so nothing was
+            # published): render that method again, in this process.
+            mid = owner.get(exc.rel)
+            if mid is None or mid in repaired:
+                raise
+            repaired.add(mid)
+            _rerender(cache, collection, mid, render_keys[mid], analyses.get(mid),
+                      own_findings[mid], options)
+            built = sorted({*built, mid})
+    times["write"] = time.perf_counter() - t0
+    report.written = True
+    report.files = len(manifest)
+    report.methods_built = len(built)
+    report.methods_cached = len(rendered) - len(built)
+    report.rebuilt = built
+    report.output_rewritten = wrote
+    return report, manifest, digest
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit("run `python -m sitegen build`")

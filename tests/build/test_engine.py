@@ -1,0 +1,195 @@
+"""The cached, parallel build: what is rebuilt, and that nothing stale is
+ever published."""
+
+from __future__ import annotations
+
+__all__: list[str] = []
+
+import re
+import shutil
+from pathlib import Path
+
+import pytest
+from conftest import contents, do_build, tree_hashes
+
+from sitegen.build.engine import MANIFEST
+
+
+def _edit(path: Path, old: str, new: str) -> None:
+    text = path.read_text("utf-8")
+    assert old in text, f"{old!r} not in {path}"
+    path.write_text(text.replace(old, new, 1), "utf-8")
+
+
+def _cold_contents(work: Path) -> dict[str, str]:
+    """The site a cold build (fresh cache and output) makes of ``work``."""
+    fresh = work.parent / "fresh"
+    shutil.copytree(work / "methods", fresh / "methods")
+    shutil.copytree(work / "theme", fresh / "theme")
+    import os
+
+    old = Path.cwd()
+    os.chdir(fresh)
+    try:
+        report = do_build()
+    finally:
+        os.chdir(old)
+    assert report.written
+    return contents(fresh / "out")
+
+
+def _all_ids(work: Path) -> list[str]:
+    return sorted(p.stem for p in (work / "methods" / "records").glob("*.yaml"))
+
+
+def test_unchanged_rebuild_builds_and_rewrites_nothing(site: Path) -> None:
+    before = tree_hashes(site / "out")
+    inodes = {p: p.stat().st_ino for p in (site / "out").rglob("*")}
+    report = do_build()
+    assert report.written
+    assert report.methods_built == 0
+    assert report.methods_cached == len(_all_ids(site))
+    assert report.rebuilt == []
+    assert tree_hashes(site / "out") == before  # bytes and mtimes
+    assert {p: p.stat().st_ino for p in (site / "out").rglob("*")} == inodes
+
+
+def test_unchanged_rebuild_with_a_new_code_key_still_skips_the_write(
+    site: Path, monkeypatch: pytest.MonkeyPatch
+) -> None:
+    # Everything recomputed (no cache), same bytes: the output is left alone.
+    before = tree_hashes(site / "out")
+    shutil.rmtree(site / "cache")
+    report = do_build()
+    assert report.methods_built == len(_all_ids(site))
+    assert report.output_rewritten is False
+    assert tree_hashes(site / "out") == before
+
+
+def test_one_changed_record_rebuilds_only_that_method(site: Path) -> None:
+    _edit(site / "methods/records/copper-iodometric.yaml", "\nprocedure: |\n",
+          "\nprocedure: |\n  0. Wear gloves.\n")
+    report = do_build()
+    assert report.rebuilt == ["copper-iodometric"]
+    assert report.methods_cached == len(_all_ids(site)) - 1
+    assert report.output_rewritten
+    assert contents(site / "out") == _cold_contents(site)
+
+
+def test_changed_reagent_rebuilds_exactly_the_methods_that_use_it(site: Path) -> None:
+    reagent = "mercury-ii-chloride"
+    users = sorted(
+        p.stem
+        for p in (site / "methods/records").glob("*.yaml")
+        if re.search(rf"\b{reagent}\b", p.read_text("utf-8"))
+    )
+    assert 0 < len(users) < len(_all_ids(site))
+    before = contents(site / "out")
+    _edit(site / f"methods/reagents/{reagent}.yaml", "name: Mercury(II) chloride",
+          "name: Mercuric chloride")
+    report = do_build()
+    assert report.rebuilt == users
+    after = contents(site / "out")
+    for mid in users:
+        assert after[f"methods/{mid}/index.html"] != before[f"methods/{mid}/index.html"]
+    assert after == _cold_contents(site)
+
+
+def test_changed_standardisation_method_rebuilds_the_pages_naming_it(site: Path) -> None:
+    # A method page shows the title of its titrant's standardisation
+    # method: a method that names none of it directly still depends on it.
+    std = "ceric-standardisation-arsenic-trioxide"
+    text = (site / f"methods/records/{std}.yaml").read_text("utf-8")
+    title = re.search(r"^title: (.*)$", text, re.M)
+    assert title is not None
+    _edit(site / f"methods/records/{std}.yaml", f"title: {title.group(1)}",
+          f"title: {title.group(1)} (revised)")
+    report = do_build()
+    assert std in report.rebuilt
+    assert len(report.rebuilt) > 1
+    assert contents(site / "out") == _cold_contents(site)
+
+
+def test_changed_template_rebuilds_every_page(site: Path) -> None:
+    _edit(site / "theme/templates/base.html", "</body>", "<!-- theme v2 --></body>")
+    report = do_build()
+    assert report.rebuilt == _all_ids(site)
+    page = (site / "out/methods/copper-iodometric/index.html").read_text("utf-8")
+    assert "theme v2" in page
+    assert contents(site / "out") == _cold_contents(site)
+
+
+def test_jobs_do_not_change_the_output(built_demo: Path, tmp_path: Path,
+                                       monkeypatch: pytest.MonkeyPatch) -> None:
+    from conftest import EPOCH
+
+    monkeypatch.setenv("SOURCE_DATE_EPOCH", EPOCH)
+    sites = {}
+    for jobs in (1, 2):
+        work = tmp_path / f"j{jobs}"
+        shutil.copytree(built_demo / "methods", work / "methods")
+        shutil.copytree(built_demo / "theme", work / "theme")
+        monkeypatch.chdir(work)
+        report = do_build(jobs=jobs)
+        assert report.written and report.methods_cached == 0
+        sites[jobs] = contents(work / "out")
+    assert sites[1] == sites[2]
+    assert sites[1] == contents(built_demo / "out")
+
+
+def test_engine_matches_the_serial_build(site: Path) -> None:
+    from sitegen.build.run import build_site
+    from sitegen.check.registry import Settings
+    from sitegen.clock import build_date
+
+    report = build_site(Path("methods"), Path("serial"), settings=Settings(today=build_date()),
+                        theme=Path("theme"))
+    assert report.written
+    ours = contents(site / "out")
+    del ours[MANIFEST]
+    assert ours == contents(site / "serial")
+
+
+def test_deleted_output_is_restored_from_the_cache(site: Path) -> None:
+    before = contents(site / "out")
+    shutil.rmtree(site / "out")
+    report = do_build()
+    assert report.written and report.methods_built == 0
+    assert contents(site / "out") == before
+
+
+def test_damaged_cache_entries_are_misses(site: Path) -> None:
+    before = contents(site / "out")
+    for p in (site / "cache").rglob("*"):
+        if p.is_file():
+            p.write_bytes(b"garbage")
+    shutil.rmtree(site / "out")
+    report = do_build()
+    assert report.written
+    assert report.methods_built == len(_all_ids(site))
+    assert contents(site / "out") == before
+
+
+def test_keep_going_leaves_failing_methods_out(site: Path) -> None:
+    bad = "copper-iodometric"
+    _edit(site / f"methods/records/{bad}.yaml", "  factor: 1   #", "  factor: 3   #")
+    before = contents(site / "out")
+    stopped = do_build()
+    assert not stopped.written
+    assert contents(site / "out") == before
+    report = do_build(keep_going=True)
+    assert report.written
+    assert [mid for mid, _ in report.excluded] == [bad]
+    out = contents(site / "out")
+    assert not any(p.startswith(f"methods/{bad}/") for p in out)
+    quality = (site / "out/quality.html").read_text("utf-8")
+    assert bad in quality
+
+
+def test_keep_going_leaves_out_a_record_that_does_not_load(site: Path) -> None:
+    bad = "copper-iodometric"
+    _edit(site / f"methods/records/{bad}.yaml", "\nprocedure:", "\nprocedur:")
+    report = do_build(keep_going=True)
+    assert report.written
+    assert [mid for mid, _ in report.excluded] == [bad]
+    assert not (site / f"out/methods/{bad}").exists()

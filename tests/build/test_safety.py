@@ -1,0 +1,129 @@
+"""The published site is never half-written, never someone else's folder,
+and the same sources give the same bytes wherever they are built."""
+
+from __future__ import annotations
+
+__all__: list[str] = []
+
+import os
+import signal
+import subprocess
+import sys
+import time
+from pathlib import Path
+
+import pytest
+from conftest import EPOCH, ROOT, contents, copy_demo, run_cli, tree_hashes
+
+
+def _start_build(cwd: Path, env: dict[str, str]) -> subprocess.Popen[bytes]:
+    e = dict(os.environ)
+    e["PYTHONPATH"] = str(ROOT) + os.pathsep + e.get("PYTHONPATH", "")
+    e["SOURCE_DATE_EPOCH"] = EPOCH
+    e.update(env)
+    return subprocess.Popen(
+        [sys.executable, "-m", "sitegen", "build", "methods", "--out", "out",
+         "--theme", "theme", "--jobs", "2"],
+        cwd=cwd, env=e, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL,
+    )
+
+
+def test_killed_while_writing_leaves_the_previous_site(site: Path) -> None:
+    before = tree_hashes(site / "out")
+    # a change, so that the build has to write
+    rec = site / "methods/records/copper-iodometric.yaml"
+    rec.write_text(rec.read_text("utf-8").replace("\nprocedure: |\n",
+                                                  "\nprocedure: |\n  0. Wear gloves.\n"), "utf-8")
+    proc = _start_build(site, {"SITEGEN_TEST_WRITE_DELAY": "0.05",
+                               "SITEGEN_CACHE": str(site / "cache")})
+    try:
+        deadline = time.monotonic() + 60
+        staged: list[Path] = []
+        while time.monotonic() < deadline and proc.poll() is None:
+            staged = [p for p in site.glob(".out.staging-*") if any(p.rglob("*.html"))]
+            if staged:
+                break
+            time.sleep(0.02)
+        assert staged, "the build never started writing"
+        time.sleep(0.2)  # a few more files
+        assert proc.poll() is None, "the build finished before it could be killed"
+        proc.send_signal(signal.SIGKILL)
+        proc.wait(timeout=10)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert tree_hashes(site / "out") == before
+    # and the next build publishes the change
+    done = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site,
+                   env={"SITEGEN_CACHE": str(site / "cache")})
+    assert done.returncode == 0, done.stderr
+    assert "Wear gloves" in (site / "out/methods/copper-iodometric/index.html").read_text("utf-8")
+
+
+def test_killed_early_leaves_the_previous_site(site: Path) -> None:
+    before = tree_hashes(site / "out")
+    (site / "theme/templates/base.html").write_text(
+        (site / "theme/templates/base.html").read_text("utf-8") + "<!-- v2 -->\n", "utf-8")
+    proc = _start_build(site, {"SITEGEN_CACHE": str(site / "cache")})
+    time.sleep(1.0)
+    proc.send_signal(signal.SIGKILL)
+    proc.wait(timeout=10)
+    assert tree_hashes(site / "out") == before
+
+
+def test_foreign_output_folder_is_refused_and_untouched(site: Path) -> None:
+    foreign = site / "mine"
+    foreign.mkdir()
+    (foreign / "notes.txt").write_text("my notes\n", "utf-8")
+    r = run_cli("build", "methods", "--out", "mine", cwd=site)
+    assert r.returncode == 2
+    assert "did not write" in r.stderr
+    assert [p.name for p in foreign.iterdir()] == ["notes.txt"]
+    assert (foreign / "notes.txt").read_text("utf-8") == "my notes\n"
+
+
+@pytest.mark.parametrize("out", ["methods", "."])
+def test_output_that_is_or_holds_the_source_is_refused(site: Path, out: str) -> None:
+    before = contents(site / "methods")
+    r = run_cli("build", "methods", "--out", out, cwd=site)
+    assert r.returncode == 2
+    assert "source folder" in r.stderr
+    assert contents(site / "methods") == before
+
+
+def test_same_sources_in_different_folders_give_the_same_site(tmp_path: Path) -> None:
+    sites = []
+    for name in ("first", "second/deeper"):
+        work = tmp_path / name
+        copy_demo(work)
+        r = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=work,
+                    env={"SITEGEN_CACHE": str(work / "cache")})
+        assert r.returncode == 0, r.stderr
+        assert "0 from cache" in r.stderr
+        sites.append(contents(work / "out"))
+    assert sites[0] == sites[1]
+    assert len(sites[0]) > 20
+
+
+def test_no_change_rebuild_does_not_import_the_heavy_libraries(site: Path) -> None:
+    # up to date with the code on disk now (which others may be editing)
+    warm = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site,
+                   env={"SITEGEN_CACHE": str(site / "cache")})
+    assert warm.returncode == 0, warm.stderr
+    code = (
+        "import sys, pathlib\n"
+        "from sitegen.build.engine import build\n"
+        "from sitegen.check.registry import Settings\n"
+        "from sitegen.clock import build_date\n"
+        "r = build(pathlib.Path('methods'), pathlib.Path('out'), theme=pathlib.Path('theme'),"
+        " cache_dir=pathlib.Path('cache'), settings=Settings(today=build_date()))\n"
+        "assert r.written and r.methods_built == 0, r.rebuilt\n"
+        "heavy = sorted(m for m in ('matplotlib', 'scipy', 'numpy', 'pydantic', 'yaml',"
+        " 'pint', 'jinja2') if m in sys.modules)\n"
+        "print(','.join(heavy))\n"
+    )
+    env = dict(os.environ, PYTHONPATH=str(ROOT), SOURCE_DATE_EPOCH=EPOCH)
+    r = subprocess.run([sys.executable, "-c", code], cwd=site, env=env, text=True,
+                       capture_output=True, timeout=60)
+    assert r.returncode == 0, r.stderr
+    assert r.stdout.strip() == ""
