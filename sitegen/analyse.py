@@ -364,7 +364,8 @@ def analyse_method(
                     out.add(
                         "couple-n-mismatch",
                         ("couples", role, "n"),
-                        f"n is stated as {c.n} but the half-reaction transfers {n} electrons",
+                        f"n is stated as {c.n} but the half-reaction transfers {n}"
+                        f" electron{'s' if n != 1 else ''}",
                     )
         p = parts.get(role)
         couples.append(
@@ -390,10 +391,12 @@ def analyse_method(
     titrant_species: str | None = None
     titrand_species: str | None = None
     titrant_is_oxidant: bool | None = None
+    couples_agree = False
     electrons: int | None = None
     log_k: float | None = None
     e_cell: float | None = None
-    if titration_rx is not None and len(parts) == 2:
+    titration_balanced = bool(reactions) and reactions[-1].balanced
+    if titration_rx is not None and titration_balanced and len(parts) == 2:
         net = _net(titration_rx)
         ta, td = parts["titrant"], parts["titrand"]
         consumed = {k for k, v in net.items() if v < 0}
@@ -433,13 +436,19 @@ def analyse_method(
             combo = {k: v for k, v in combo.items() if v != 0}
             if combo != net:
                 diff = sorted(set(combo) ^ set(net) | {k for k in net if combo.get(k) != net[k]})
+                detail = [d for d in diff if d != "e-"]
+                why = f"they disagree on {', '.join(detail)}" if detail else ""
+                if "e-" in diff:
+                    why = "; ".join(
+                        x for x in (why, "the electrons of the two halves do not cancel") if x
+                    )
                 out.add(
                     "titration-couples-mismatch",
                     ("reactions", "titration"),
-                    "the titration reaction is not the sum of the two half-reactions"
-                    f" (they disagree on {', '.join(diff)})",
+                    f"the titration reaction is not the sum of the two half-reactions ({why})",
                 )
             else:
+                couples_agree = True
                 electrons = int(abs(alpha) * ta[5])
                 # Conditional potentials at the record's [H+]: a couple with
                 # m protons on its oxidised side shifts by (m/n)*slope*log[H+].
@@ -475,6 +484,9 @@ def analyse_method(
         and analyte_species is not None
         and analyte_formula is not None
         and all(r.balanced for r in reactions)
+        # a titration reaction that disagrees with its couples gives no
+        # trustworthy factor; its own finding says why
+        and couples_agree
     ):
         from .chem import chain
 

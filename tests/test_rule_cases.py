@@ -52,16 +52,7 @@ _LINE = re.compile(
 #: Cases the pipeline gets wrong today: case -> reason. Their ``expected``
 #: files describe the right behaviour; each runs as a strict xfail, so the
 #: entry must go once the pipeline is fixed.
-KNOWN_WRONG: dict[str, str] = {
-    "bad-formula-ambiguous-charge": (
-        "the column points at the last character of the charge ('+' of 'Fe3+'),"
-        " not at the species 'Fe3+' inside the reaction text"
-    ),
-    "titration-couples-mismatch-sulfate": (
-        "a titration reaction that disagrees with the couples still feeds the"
-        " factor derivation: follow-on factor-mismatch (8) and a 203 % worked result"
-    ),
-}
+KNOWN_WRONG: dict[str, str] = {}
 
 CASES = sorted(p.name for p in CASES_DIR.iterdir() if p.is_dir())
 

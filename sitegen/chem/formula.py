@@ -459,7 +459,7 @@ class _Parser:
                 alt = self.t[:start].strip() + "^" + c
                 raise FormulaError(
                     self.t,
-                    start,
+                    d0,  # the digit before which the caret belongs
                     f"ambiguous charge {self.last_digits + c!r}: write the charge with a caret, "
                     f"e.g. {sugg!r} (charge {self.t[d0]}{c}) or {alt!r} (charge 1{c})",
                     sugg,

@@ -130,16 +130,17 @@ def test_species_direct_construction_is_normalised():
 
 
 @pytest.mark.parametrize(
+    # index: the digit before which the caret belongs
     ("text", "suggestion", "index"),
     [
-        ("Fe3+", "Fe^3+", 3),
-        ("Cu2+", "Cu^2+", 3),
-        ("SO42-", "SO4^2-", 4),
-        ("PO43-", "PO4^3-", 4),
-        ("S2-", "S^2-", 2),
-        ("N3-", "N^3-", 2),
-        ("[Fe(CN)6]3-", "[Fe(CN)6]^3-", 10),
-        ("Fe3+(aq)", "Fe^3+", 3),
+        ("Fe3+", "Fe^3+", 2),
+        ("Cu2+", "Cu^2+", 2),
+        ("SO42-", "SO4^2-", 3),
+        ("PO43-", "PO4^3-", 3),
+        ("S2-", "S^2-", 1),
+        ("N3-", "N^3-", 1),
+        ("[Fe(CN)6]3-", "[Fe(CN)6]^3-", 9),
+        ("Fe3+(aq)", "Fe^3+", 2),
     ],
 )
 def test_ambiguous_bare_charge_rejected_with_caret_suggestion(text, suggestion, index):

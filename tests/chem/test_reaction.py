@@ -122,7 +122,7 @@ def test_balance_delta_of_balanced_reaction_is_zero():
 @pytest.mark.parametrize(
     ("text", "index"),
     [
-        ("MnO4- + Fe3+ -> Mn^2+", 11),  # ambiguous charge, offset into whole text
+        ("MnO4- + Fe3+ -> Mn^2+", 10),  # ambiguous charge, offset into whole text
         ("H2 + O2", 7),  # no arrow: caret at the end
         ("H2 -> H2 -> H2", 9),  # second arrow
         (" -> H2", 0),  # empty side

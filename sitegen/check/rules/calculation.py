@@ -71,7 +71,9 @@ def burette_range(ctx: Context, loaded: Any, analysis: Any) -> Iterator[Finding]
     """The expected titrant volume, and the worked example's, must lie in
     the sensible part of the burette (common practice: 20-90 % of its
     capacity; the band is a site setting): less reads too imprecisely,
-    more risks a refill mid-titration."""
+    more risks a refill mid-titration. Outside the band is a warning; more
+    than the burette holds, or less than half the band's lower limit, is an
+    error."""
     rec = loaded.record
     lo, hi = ctx.settings.burette_band
     cap = rec.titration.burette.value
@@ -97,7 +99,7 @@ def burette_range(ctx: Context, loaded: Any, analysis: Any) -> Iterator[Finding]
                 f"{vol:g} mL is {100 * vol / cap:.0f} % of the {cap:g} mL burette; keep it within"
                 f" {100 * lo:.0f}-{100 * hi:.0f} % (adjust the sample size or the titrant"
                 " concentration)",
-                Severity.WARNING if vol >= lo * cap * 0.5 and vol <= cap else Severity.ERROR,
+                Severity.WARNING if vol >= lo * cap * 0.5 else Severity.ERROR,
             )
 
 
@@ -112,7 +114,7 @@ def weak_equilibrium(ctx: Context, loaded: Any, analysis: Any) -> Iterator[Findi
         yield ctx.finding(
             "weak-equilibrium",
             loaded,
-            ("couples",),
+            ("couples", "titrant", "formal_potential"),
             f"log10 K of the titration reaction is {analysis.log10_K:.1f}, below"
             f" {ctx.settings.min_log10_k:g}; the reaction is not complete enough for a sharp"
             " end point",
@@ -131,7 +133,7 @@ def small_break(ctx: Context, loaded: Any, analysis: Any) -> Iterator[Finding]:
         yield ctx.finding(
             "small-break",
             loaded,
-            ("couples",),
+            ("couples", "titrant", "formal_potential"),
             f"the potential changes by only {1000 * brk:.0f} mV between 99.9 % and 100.1 % of"
             f" titration; at least {1000 * ctx.settings.min_break_V:.0f} mV is needed",
             Severity.WARNING,
