@@ -156,3 +156,24 @@ def test_generated_inputs_are_what_they_claim(tmp_path: Path) -> None:
     root = _build("not-utf8", tmp_path / "c")
     with pytest.raises(UnicodeDecodeError):
         (root / METHOD).read_bytes().decode("utf-8")
+
+
+@pytest.mark.parametrize("case", CASES)
+def test_bad_case_through_the_command_line(case: str, tmp_path: Path) -> None:
+    """The whole pipeline (load, analyse, check) on each broken record: exit
+    1 or 2, JSON that parses, every finding with a position, never an
+    internal error."""
+    import io
+    import json
+
+    from sitegen.cli import main
+
+    root = _build(case, tmp_path)
+    out, err = io.StringIO(), io.StringIO()
+    code = main(["check", str(root), "--format", "json", "--today", "2026-12-01"], out, err)
+    assert code in (1, 2), (code, out.getvalue(), err.getvalue())
+    assert "internal error" not in err.getvalue()
+    data = json.loads(out.getvalue())
+    assert data and all(d["line"] >= 1 and d["column"] >= 1 and d["rule"] for d in data)
+    wanted = {w["rule"] for w in _expected(case)}
+    assert wanted <= {d["rule"] for d in data}

@@ -213,3 +213,13 @@ def test_search_index_content(site, demo):
             r = col.reagents[use.ref].record
             assert r.name in d["reagents"] and r.formula in d["formulas"]
         assert d["url"] in site
+
+
+def test_every_page_says_that_local_rules_and_the_sds_take_precedence(site):
+    pages = [p for p in site if p.endswith(".html")]
+    assert len(pages) > 20
+    for p in pages:
+        text = site[p].decode("utf-8")
+        assert "supplier&#39;s safety data sheet take precedence" in text or (
+            "supplier's safety data sheet take precedence" in text
+        ), p
