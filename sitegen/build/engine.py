@@ -412,9 +412,24 @@ class _Runner:
 # Load, with a per-file cache
 
 
-def _load(root: Path, cwd: Path, cache: Cache, code: str) -> Any:
+def _load_many(items: Sequence[tuple[str, Any, str]], cache_root: Path) -> bytes:
+    """Validate records in a worker: (folder, Source, key) -> results."""
+    from ..load import collection as lc
+    from ..load.records import load_text
+
+    cache = Cache(cache_root)
+    out = []
+    for folder, src, key in items:
+        value = load_text(lc.KINDS[folder], src)
+        cache.put("loaded", key, value)
+        out.append((key, value))
+    return dumps(out)
+
+
+def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
     """The collection, as :func:`sitegen.load.collection.load_collection`
-    builds it, with each record validated at most once per content."""
+    builds it, with each record validated at most once per content (and
+    the records not in the cache validated by ``jobs`` processes)."""
     from ..load import collection as lc
     from ..load.records import load_text
 
@@ -431,39 +446,71 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str) -> Any:
     sr = root / "safety-rules.yaml"
     if sr.is_file():
         col.safety_rules_source = lc._read(sr, cwd, col)
-    targets = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}
+    # read everything first, so that the records the cache lacks can be
+    # validated in parallel; the collection is then assembled in order
+    order: list[tuple[str, Path, str]] = []
+    results: dict[str, Any] = {}
+    misses: list[tuple[str, Any, str]] = []
     for folder, model in lc.KINDS.items():
-        target = targets[folder]
         for path in lc._files(root / folder):
             src = lc._read(path, cwd, col)
             if src is None:
                 continue
-            loaded, findings = _cached_load(cache, code, model, src, load_text)
-            col.findings.extend(findings)
-            if loaded is None:
-                continue
-            rid = loaded.record.id
-            if rid != path.stem:
-                col.findings.append(
-                    Finding(
-                        "id-mismatch",
-                        Severity.ERROR,
-                        f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
-                        loaded.span("id"),
-                    )
+            key = key_of("loaded", code, model.__name__, src.path, src.digest)
+            order.append((folder, path, key))
+            hit = cache.get("loaded", key)
+            if hit is not None and (hit[0] is None or hit[0].source == src):
+                results[key] = hit
+            else:
+                misses.append((folder, src, key))
+    if len(misses) >= 4 * _POOL_MIN and jobs > 1:
+        import multiprocessing as mp
+        from concurrent.futures import ProcessPoolExecutor
+
+        methods = mp.get_all_start_methods()
+        ctx = mp.get_context("fork" if "fork" in methods else None)
+        size = max(1, min(64, math.ceil(len(misses) / (jobs * 4))))
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=ctx) as pool:
+            futures = [
+                pool.submit(_load_many, misses[i : i + size], cache.root)
+                for i in range(0, len(misses), size)
+            ]
+            for fut in futures:
+                results.update(loads(fut.result()))
+    else:
+        for folder, src, key in misses:
+            value = load_text(lc.KINDS[folder], src)
+            cache.put("loaded", key, value)
+            results[key] = value
+    targets = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}
+    for folder, path, key in order:
+        target = targets[folder]
+        loaded, findings = results[key]
+        col.findings.extend(findings)
+        if loaded is None:
+            continue
+        rid = loaded.record.id
+        if rid != path.stem:
+            col.findings.append(
+                Finding(
+                    "id-mismatch",
+                    Severity.ERROR,
+                    f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
+                    loaded.span("id"),
                 )
-                continue
-            if rid in target:
-                col.findings.append(
-                    Finding(
-                        "duplicate-id",
-                        Severity.ERROR,
-                        f"id {rid!r} is already used by {target[rid].source.path}",
-                        loaded.span("id"),
-                    )
+            )
+            continue
+        if rid in target:
+            col.findings.append(
+                Finding(
+                    "duplicate-id",
+                    Severity.ERROR,
+                    f"id {rid!r} is already used by {target[rid].source.path}",
+                    loaded.span("id"),
                 )
-                continue
-            target[rid] = loaded
+            )
+            continue
+        target[rid] = loaded
     return col
 
 
@@ -690,6 +737,7 @@ def build(
         col = SourcesOnly(root=source, sources=dict(snap.sources),
                           methods=dict.fromkeys(snap.method_ids))
         result = CheckResult(col, {}, list(snap.findings))  # type: ignore[arg-type]
+        _log_stages(times)
         return BuildReport(
             check=result, written=snap.written, out=out, methods_built=0,
             methods_cached=len(snap.method_ids) - len(snap.excluded) if snap.written else 0,
@@ -699,7 +747,7 @@ def build(
 
     # -- 2. load -----------------------------------------------------------------
     t0 = time.perf_counter()
-    collection = _load(source, cwd, cache, code)
+    collection = _load(source, cwd, cache, code, jobs)
     times["load"] = time.perf_counter() - t0
 
     from ..hazards.rules_engine import load_rules
@@ -717,7 +765,17 @@ def build(
     # The outcome is a function of the key's inputs, failures included, so
     # an unchanged rerun of a failing build answers at once too.
     _remember(cache, build_key, report, collection, manifest, digest)
+    _log_stages(times)
     return report
+
+
+def _log_stages(times: Mapping[str, float]) -> None:
+    """Append the stage times as one JSON line to ``$SITEGEN_STAGE_LOG``
+    when set (the benchmark reads it; the CLI prints only the total)."""
+    target = os.environ.get("SITEGEN_STAGE_LOG")
+    if target:
+        with open(target, "a", encoding="utf-8") as fh:
+            fh.write(json.dumps(dict(times), sort_keys=True) + "\n")
 
 
 def _restore(out: Path, cache: Cache, snap: _Snapshot) -> bool:
