@@ -285,8 +285,8 @@ def analyse_method(
         loaded: the method (``Loaded`` with a :class:`MethodRecord`).
         reagents: id -> ``Loaded`` reagent records.
         indicators: id -> ``Loaded`` indicator records.
-        reference: reference electrode key for plots (default: the
-            record's ``conditions.reference_electrode``).
+        reference: the site's reference electrode key, used when the record's
+            ``conditions.reference_electrode`` is not given (then SHE).
         safety_rules: the safety rule set (built-in plus the lab's own, from
             :func:`sitegen.hazards.rules_engine.load_rules`); built-in only
             when None.
@@ -297,7 +297,7 @@ def analyse_method(
 
     rec: MethodRecord = loaded.record
     out = _Collector(loaded)
-    ref_key = reference or rec.conditions.reference_electrode
+    ref_key = rec.conditions.reference_electrode or reference or "SHE"
     T = rec.conditions.temperature.value
 
     # -- reactions ----------------------------------------------------------

@@ -245,7 +245,9 @@ class Conditions(_Strict):
     temperature: Temperature = Field(
         default_factory=lambda: parse_measure("25 degC", "temperature")
     )
-    reference_electrode: Literal["SHE", "SCE", "Ag/AgCl-sat", "Ag/AgCl-3M"] = "SHE"
+    reference_electrode: Literal["SHE", "SCE", "Ag/AgCl-sat", "Ag/AgCl-3M"] | None = Field(
+        default=None, description="the lab's reference electrode; default: site.yaml's"
+    )
 
 
 class TitrationParameters(_Strict):

@@ -68,8 +68,15 @@ def analyse_all(collection: Collection) -> dict[str, Any]:
     from ..hazards.rules_engine import load_rules
 
     rules = load_rules(collection.safety_rules_source)
+    site_ref = collection.site.record.reference_electrode if collection.site else None
     return {
-        mid: analyse_method(loaded, collection.reagents, collection.indicators, safety_rules=rules)
+        mid: analyse_method(
+            loaded,
+            collection.reagents,
+            collection.indicators,
+            reference=site_ref,
+            safety_rules=rules,
+        )
         for mid, loaded in sorted(collection.methods.items())
     }
 

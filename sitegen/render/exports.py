@@ -56,7 +56,9 @@ def method_json(loaded: Any, analysis: Any, findings: Sequence[Finding]) -> byte
         "revision": rec.revision,
         "status": rec.status.value,
         "fingerprint": loaded.source.fingerprint,
-        "reference_electrode": cv.reference if cv is not None else rec.conditions.reference_electrode,
+        "reference_electrode": cv.reference
+        if cv is not None
+        else (rec.conditions.reference_electrode or "SHE"),
         "equivalence_volume_mL": fmt.data_float(cv.equivalence_volume_mL) if cv else None,
         "equivalence_potential_V_vs_SHE": fmt.data_float(cv.equivalence_potential_V) if cv else None,
         "equivalence_potential_V_vs_ref": fmt.data_float(cv.equivalence_potential_ref_V)

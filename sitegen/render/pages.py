@@ -326,7 +326,7 @@ def _check_row(rid: str, found: Sequence[Finding]) -> dict[str, Any]:
 def _reference(record: Any, analysis: Any) -> str:
     if analysis is not None and analysis.curve is not None:
         return str(analysis.curve.reference)
-    return str(record.conditions.reference_electrode)
+    return str(record.conditions.reference_electrode or "SHE")
 
 
 def _reagent_rows(record: Any, collection: Any, root: str) -> list[dict[str, Any]]:
