@@ -33,11 +33,13 @@ method id, in sorted order.
 
 from __future__ import annotations
 
-__all__ = ["MANIFEST", "build"]
+__all__ = ["MANIFEST", "build", "check_summaries"]
 
+import dataclasses
 import json
 import math
 import os
+import posixpath
 import re
 import sys
 import time
@@ -45,6 +47,7 @@ from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any, TextIO
+from urllib.parse import unquote, urlsplit
 
 from ..check.registry import Settings
 from ..errors import Finding, Severity, Span
@@ -529,28 +532,88 @@ def _cached_load(cache: Cache, code: str, model: Any, src: Any, load_text: Any) 
 # Links
 
 
-def _link_stub(summary: tuple[tuple[str, ...], tuple[str, ...]]) -> bytes:
-    """A tiny HTML document with the same ids and links as a page: the
-    link checker reads only those, so it reports the same for the stub."""
-    from html import escape
+_Summary = tuple[tuple[str, ...], tuple[str, ...]]
 
-    ids, refs = summary
-    parts = [f'<a id="{escape(i, quote=True)}"></a>' for i in ids]
-    parts += [f'<a href="{escape(r, quote=True)}"></a>' for r in refs]
-    return "".join(parts).encode("utf-8")
+
+def _resolve(page: str, href: str, names: Any, ids: Mapping[str, frozenset[str]]) -> str | None:
+    """Why ``href`` on ``page`` is broken, or None: the rules of
+    :func:`sitegen.render.links.check_links`, applied to page summaries
+    (tests/build/test_links.py holds the two to the same answers)."""
+    parts = urlsplit(href)
+    if parts.scheme:
+        if parts.scheme.lower() in {"javascript", "vbscript", "data"}:
+            return f"{parts.scheme}: links are not allowed"
+        return None
+    if parts.netloc or href.startswith("/"):
+        return "absolute link; the site must work from any base path"
+    if parts.path:
+        joined = posixpath.normpath(posixpath.join(posixpath.dirname(page), unquote(parts.path)))
+        if joined == ".." or joined.startswith("../"):
+            return "points outside the site"
+        if parts.path.endswith("/"):
+            return "links to a folder; name the index.html"
+        target = joined
+    else:
+        target = page
+    if target not in names:
+        return f"no such file {target}"
+    frag = unquote(parts.fragment)
+    if frag and target.endswith(".html") and frag not in ids.get(target, frozenset()):
+        return f"no element with id {frag!r} in {target}"
+    return None
+
+
+def check_summaries(
+    summaries: Mapping[str, _Summary], names: Iterable[str], pages: Iterable[str] | None = None
+) -> list[tuple[str, str, str]]:
+    """Broken links of ``pages`` (default: every summarised page), given
+    every page's (ids, links) and the names of every file of the site."""
+    name_set = set(names)
+    ids = {p: frozenset(s[0]) for p, s in summaries.items()}
+    broken = set()
+    for page in sorted(summaries if pages is None else pages):
+        for href in summaries[page][1]:
+            why = _resolve(page, href, name_set, ids)
+            if why is not None:
+                broken.add((page, href, why))
+    return sorted(broken)
 
 
 def _broken_links(
-    shared: Mapping[str, bytes],
-    rendered: Mapping[str, _Rendered],
+    cache: Cache, out: Path, shared: Mapping[str, bytes], rendered: Mapping[str, _Rendered]
 ) -> list[tuple[str, str, str]]:
-    from ..render.links import check_links
-
-    stubs: dict[str, bytes] = dict(shared)
+    """Broken links of the new site, checking again only the pages that
+    changed since the last good check into ``out`` (all of them when a
+    file appeared or went, or any page's ids changed: those decide every
+    other page's links)."""
+    summaries: dict[str, _Summary] = {}
+    names: list[str] = list(shared)
+    for rel, data in shared.items():
+        if rel.endswith(".html"):
+            summaries[rel] = _link_summary(data)
     for entry in rendered.values():
-        for rel in entry.files:
-            stubs[rel] = _link_stub(entry.links[rel]) if rel in entry.links else b""
-    return check_links(stubs)
+        names.extend(entry.files)
+        summaries.update(entry.links)
+    names.sort()
+    names_key = key_of(names)
+    ids_key = key_of(sorted((p, s[0]) for p, s in summaries.items()))
+    page_keys = {p: key_of(s[1]) for p, s in summaries.items()}
+    state_key = key_of("links", str(out.resolve()))
+    prev = cache.get("links", state_key)
+    if (
+        isinstance(prev, dict)
+        and prev.get("names") == names_key
+        and prev.get("ids") == ids_key
+        and isinstance(prev.get("pages"), dict)
+    ):
+        old = prev["pages"]
+        todo = [p for p, k in page_keys.items() if old.get(p) != k]
+    else:
+        todo = list(summaries)
+    broken = check_summaries(summaries, names, todo)
+    if not broken:
+        cache.put("links", state_key, {"names": names_key, "ids": ids_key, "pages": page_keys})
+    return broken
 
 
 # ----------------------------------------------------------------------------
@@ -887,7 +950,9 @@ def _build_loaded(
     )
     published = pages.published_methods(collection, options)
     globals_key = key_of(
-        "render-globals", code, theme_digest, repr(options),
+        # the theme by content (its folder's name does not reach the pages)
+        "render-globals", code, theme_digest,
+        repr(dataclasses.replace(options, theme_dir=Path("theme"))),
         *(
             (s.path, s.digest) if s is not None else None
             for s in (
@@ -926,7 +991,7 @@ def _build_loaded(
 
     # -- 6. links ----------------------------------------------------------------
     t0 = time.perf_counter()
-    broken = _broken_links(shared, rendered)
+    broken = _broken_links(cache, out, shared, rendered)
     times["links"] = time.perf_counter() - t0
     if broken:
         report.check.findings.extend(

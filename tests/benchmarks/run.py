@@ -74,9 +74,24 @@ def make_collection(n: int, dest: Path) -> list[str]:
     return sorted(ids[:n])
 
 
+#: The code under test: a snapshot of the checkout taken at the start, so
+#: that edits made to the working tree during the run (the cache keys
+#: include the code) neither invalidate the cache between builds nor mix
+#: two versions in one report.
+_CODE: list[Path] = [ROOT]
+
+
+def _snapshot_code(dest: Path) -> Path:
+    shutil.copytree(ROOT / "sitegen", dest / "sitegen",
+                    ignore=shutil.ignore_patterns("__pycache__"))
+    shutil.copytree(ROOT / "theme", dest / "theme")
+    _CODE[0] = dest
+    return dest
+
+
 def _env(work: Path, stage_log: Path) -> dict[str, str]:
     env = dict(os.environ)
-    env["PYTHONPATH"] = str(ROOT) + os.pathsep + env.get("PYTHONPATH", "")
+    env["PYTHONPATH"] = str(_CODE[0]) + os.pathsep + env.get("PYTHONPATH", "")
     env["SOURCE_DATE_EPOCH"] = EPOCH
     env["SITEGEN_CACHE"] = str(work / "cache")
     env["SITEGEN_STAGE_LOG"] = str(stage_log)
@@ -112,7 +127,7 @@ def _median(runs: list[dict[str, Any]], key: str = "seconds") -> float:
 
 def _svg_yardstick(repeats: int) -> float:
     """Median seconds of one matplotlib SVG render of a demo curve."""
-    sys.path.insert(0, str(ROOT))
+    sys.path.insert(0, str(_CODE[0]))
     from sitegen.analyse import analyse_method
     from sitegen.hazards.rules_engine import load_rules
     from sitegen.load.collection import load_collection
@@ -196,15 +211,16 @@ def main(argv: list[str] | None = None) -> int:
     args = ap.parse_args(argv)
 
     t_all = time.perf_counter()
-    svg = _svg_yardstick(repeats=15)
-    curve = _curve_yardstick()
     with tempfile.TemporaryDirectory(prefix="sitegen-bench-") as tmpd:
         tmp = Path(tmpd)
+        _snapshot_code(tmp / "code")
+        svg = _svg_yardstick(repeats=15)
+        curve = _curve_yardstick()
         main_run = _scale(args.n, args.jobs, args.repeats, args.cold_repeats, tmp, True)
         big = None
         if not args.skip_5000:
             big = _scale(5 * args.n, args.jobs, args.repeats, 1, tmp, False)
-    svg_after = _svg_yardstick(repeats=15)
+        svg_after = _svg_yardstick(repeats=15)
 
     cold = _median(main_run["cold"])
     nochange = _median(main_run["nochange"])
