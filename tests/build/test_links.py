@@ -45,7 +45,9 @@ def test_summaries_agree_on_the_demo_site(built_demo: Path) -> None:
         for p in out.rglob("*") if p.is_file() and not p.name.startswith(".")
     }
     # break a few links on purpose, so both checkers have something to find
-    files["index.html"] += b'<a href="methods/none/index.html">x</a><a href="glossary.html#no">y</a>'
+    files["index.html"] += (
+        b'<a href="methods/none/index.html">x</a><a href="glossary.html#no">y</a>'
+    )
     expected = check_links(files)
     assert len(expected) == 2
     assert check_summaries(_summaries(files), files) == expected
