@@ -278,7 +278,11 @@ def _analyse_many(state: _WorkerState, items: Sequence[tuple[str, str]]) -> list
     out = []
     for mid, key in items:
         analysis = analyse_method(
-            col.methods[mid], col.reagents, col.indicators, safety_rules=state.safety_rules
+            col.methods[mid],
+            col.reagents,
+            col.indicators,
+            reference=col.site.record.reference_electrode if col.site else None,
+            safety_rules=state.safety_rules,
         )
         cache.put("analysis", key, analysis)
         out.append((mid, analysis))
