@@ -244,8 +244,9 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
         print(f"sitegen serve: error: cannot listen on {host}:{args.port}: {exc}", file=err)
         return 2
     server.daemon_threads = True
-    bound_host, bound_port = server.server_address[:2]
-    print(f"sitegen serve: http://{bound_host}:{bound_port}/ (Ctrl-C to stop)", file=out)
+    bound_port = server.server_address[1]  # the port chosen when asked for 0
+    shown = f"[{host}]" if ":" in host else host
+    print(f"sitegen serve: http://{shown}:{bound_port}/ (Ctrl-C to stop)", file=out)
     out.flush()
     thread = threading.Thread(target=server.serve_forever, name="sitegen-serve", daemon=True)
     thread.start()
