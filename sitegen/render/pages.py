@@ -392,7 +392,7 @@ def _couple_rows(record: Any, analysis: Any, ref: str) -> list[dict[str, Any]]:
 def _curve_block(record: Any, analysis: Any, ref: str, mid: str) -> dict[str, Any] | None:
     if analysis is None or analysis.curve is None:
         return None
-    from .plots import curve_svg
+    from .plots import curve_key, curve_svg
 
     cv = analysis.curve
     ind = analysis.indicator
@@ -426,6 +426,7 @@ def _curve_block(record: Any, analysis: Any, ref: str, mid: str) -> dict[str, An
         )
     return {
         "svg": Markup(curve_svg(cv, ind, record.title, prefix=f"curve-{mid}")),
+        "key": curve_key(cv, ind),
         "note": cv.note,
         "assumption": cv.assumption,
         "indicator_note": ind.note if ind is not None else None,

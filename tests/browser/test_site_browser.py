@@ -236,7 +236,8 @@ def test_readable_without_javascript(browser, base_url, demo_collection):
     assert "needs JavaScript" in pg.inner_text("#search-count")
     pg.goto(base_url + "methods/iron-ii-ceric/index.html")
     assert pg.locator("section.hazards").is_visible()
-    assert pg.locator("figure.plot svg").is_visible()
+    assert pg.locator("figure.plot svg.curve").is_visible()
+    assert pg.locator("figure.plot .curve-key li").count() == 4  # line, dashed, marker, band
     # the worked result is in the page itself, not computed by the script
     assert pg.inner_text("#calc-result") == pg.inner_text("#worked-result")
     ctx.close()

@@ -6,7 +6,8 @@ import numpy as np
 import pytest
 
 from sitegen.analyse import CurveInfo, IndicatorInfo
-from sitegen.render.plots import curve_svg
+from sitegen.render import plots
+from sitegen.render.plots import curve_key, curve_svg
 
 
 def _curve(note=None, nan=False):
@@ -41,7 +42,7 @@ def test_inline_ready_and_accessible():
     assert '<title id="m1-title">Titration curve: Iron &lt;test&gt;</title>' in svg
     assert 'id="m1-desc"' in svg
     assert "E / V vs SCE" in svg
-    assert "Ferroin" in svg  # the band is in the legend
+    assert "Ferroin" in svg  # the band is described
     for i in re.findall(r'\bid="([^"]+)"', svg):
         assert i.startswith("m1-"), i
     for ref in re.findall(r"url\(#([^)]+)\)", svg):
@@ -75,3 +76,51 @@ def test_axis_names_reference(ref):
     c = _curve()
     c = CurveInfo(**{**c.__dict__, "reference": ref})
     assert f"E / V vs {ref}" in curve_svg(c, None, "T")
+
+
+def _fresh(curve, ind, title, prefix):
+    """The same picture drawn on a new canvas, with nothing drawn before."""
+    return plots._finish(plots._draw(plots._new_canvas(), curve, ind), curve, ind, title, prefix)
+
+
+def _variants():
+    c = _curve()
+    return [
+        ("band", c, IND),
+        ("no indicator", c, None),
+        ("gap", _curve(note="no response", nan=True), IND),
+        ("no equivalence potential", CurveInfo(**{**c.__dict__, "equivalence_potential_ref_V": None}), None),
+        ("other range", CurveInfo(**{**c.__dict__, "volumes_mL": c.volumes_mL * 2.5,
+                                      "E_vs_ref": c.E_vs_ref - 0.9, "reference": "Ag/AgCl-sat"}), IND),
+    ]
+
+
+def test_reused_canvas_draws_what_a_fresh_one_draws_in_any_order():
+    # The build reuses one canvas per process; what it draws must not
+    # depend on the curves drawn before, or output would depend on --jobs.
+    cases = _variants()
+    fresh = {name: _fresh(c, i, "T", "p") for name, c, i in cases}
+    for order in (cases, cases[::-1], cases[1::2] + cases[::2]):
+        for name, c, i in order:
+            assert curve_svg(c, i, "T", prefix="p") == fresh[name], name
+
+
+def test_shown_parts_follow_the_data():
+    c = _curve()
+    with_band = curve_svg(c, IND, "T", prefix="p")
+    curve_svg(_curve(nan=True), None, "T", prefix="p")  # something else in between
+    without = curve_svg(c, None, "T", prefix="p")
+    assert "<pattern" in with_band and "<pattern" not in without
+    none_pt = CurveInfo(**{**c.__dict__, "equivalence_potential_ref_V": None})
+    # the diamond marker is drawn only with a potential to put it at
+    assert without.count("<use") > curve_svg(none_pt, None, "T", prefix="p").count("<use")
+
+
+def test_key_lists_what_is_drawn():
+    key = curve_key(_curve(), IND)
+    assert [k["swatch"] for k in key] == ["line", "dashed", "marker", "band"]
+    assert key[1]["label"] == "equivalence volume, 20.00 mL"
+    assert key[3]["label"] == "Ferroin: transition range"
+    assert key[0]["colour"] == plots.PALETTE["curve"]
+    c = CurveInfo(**{**_curve().__dict__, "equivalence_potential_ref_V": None})
+    assert [k["swatch"] for k in curve_key(c, None)] == ["line", "dashed"]
