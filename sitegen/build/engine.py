@@ -33,21 +33,19 @@ method id, in sorted order.
 
 from __future__ import annotations
 
-__all__ = ["MANIFEST", "build", "check_summaries"]
+__all__ = ["MANIFEST", "build"]
 
 import dataclasses
 import json
 import math
 import os
-import posixpath
 import re
 import sys
 import time
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
-from typing import Any, TextIO
-from urllib.parse import unquote, urlsplit
+from typing import TYPE_CHECKING, Any, TextIO
 
 from ..check.registry import Settings
 from ..errors import Finding, Severity, Span
@@ -64,6 +62,10 @@ from .cache import (
 )
 from .run import BuildReport, CheckResult, default_theme
 from .write import check_output_dir
+
+if TYPE_CHECKING:
+    # (the render package imports jinja2 and markdown-it: not on the no-change path)
+    from ..render.links import PageLinks
 
 #: The output folder's manifest: every file's sha256 and size, and the
 #: digest of the whole set. A build whose file set has the same digest
@@ -289,24 +291,13 @@ def _analyse_many(state: _WorkerState, items: Sequence[tuple[str, str]]) -> list
     return out
 
 
-def _link_summary(data: bytes) -> tuple[tuple[str, ...], tuple[str, ...]]:
-    """The element ids and link targets of an HTML page, as the link
-    checker reads them."""
-    # the checker's own parser, so that a summary says exactly what it
-    # would have found in the page
-    from ..render.links import _parse
-
-    p = _parse(data)
-    return tuple(sorted(p.ids)), tuple(sorted(set(p.refs)))
-
-
 @dataclass(frozen=True)
 class _Rendered:
     """A method's rendered files as the cache keeps them: path -> (sha256,
     size), and the link summary of each HTML page."""
 
     files: dict[str, tuple[str, int]]
-    links: dict[str, tuple[tuple[str, ...], tuple[str, ...]]]
+    links: dict[str, PageLinks]
 
 
 def _render_many(
@@ -326,12 +317,14 @@ def _render_many(
 
 
 def _store_files(cache: Cache, files: Mapping[str, bytes]) -> _Rendered:
+    from ..render.links import page_links
+
     meta: dict[str, tuple[str, int]] = {}
     links = {}
     for rel, data in sorted(files.items()):
         meta[rel] = (cache.put_blob(data), len(data))
         if rel.endswith(".html"):
-            links[rel] = _link_summary(data)
+            links[rel] = page_links(data)
     return _Rendered(meta, links)
 
 
@@ -536,53 +529,6 @@ def _cached_load(cache: Cache, code: str, model: Any, src: Any, load_text: Any) 
 # Links
 
 
-_Summary = tuple[tuple[str, ...], tuple[str, ...]]
-
-
-def _resolve(page: str, href: str, names: Any, ids: Mapping[str, frozenset[str]]) -> str | None:
-    """Why ``href`` on ``page`` is broken, or None: the rules of
-    :func:`sitegen.render.links.check_links`, applied to page summaries
-    (tests/build/test_links.py holds the two to the same answers)."""
-    parts = urlsplit(href)
-    if parts.scheme:
-        if parts.scheme.lower() in {"javascript", "vbscript", "data"}:
-            return f"{parts.scheme}: links are not allowed"
-        return None
-    if parts.netloc or href.startswith("/"):
-        return "absolute link; the site must work from any base path"
-    if parts.path:
-        joined = posixpath.normpath(posixpath.join(posixpath.dirname(page), unquote(parts.path)))
-        if joined == ".." or joined.startswith("../"):
-            return "points outside the site"
-        if parts.path.endswith("/"):
-            return "links to a folder; name the index.html"
-        target = joined
-    else:
-        target = page
-    if target not in names:
-        return f"no such file {target}"
-    frag = unquote(parts.fragment)
-    if frag and target.endswith(".html") and frag not in ids.get(target, frozenset()):
-        return f"no element with id {frag!r} in {target}"
-    return None
-
-
-def check_summaries(
-    summaries: Mapping[str, _Summary], names: Iterable[str], pages: Iterable[str] | None = None
-) -> list[tuple[str, str, str]]:
-    """Broken links of ``pages`` (default: every summarised page), given
-    every page's (ids, links) and the names of every file of the site."""
-    name_set = set(names)
-    ids = {p: frozenset(s[0]) for p, s in summaries.items()}
-    broken = set()
-    for page in sorted(summaries if pages is None else pages):
-        for href in summaries[page][1]:
-            why = _resolve(page, href, name_set, ids)
-            if why is not None:
-                broken.add((page, href, why))
-    return sorted(broken)
-
-
 def _broken_links(
     cache: Cache, out: Path, shared: Mapping[str, bytes], rendered: Mapping[str, _Rendered]
 ) -> list[tuple[str, str, str]]:
@@ -590,11 +536,13 @@ def _broken_links(
     changed since the last good check into ``out`` (all of them when a
     file appeared or went, or any page's ids changed: those decide every
     other page's links)."""
-    summaries: dict[str, _Summary] = {}
+    from ..render.links import check_summaries, page_links
+
+    summaries: dict[str, PageLinks] = {}
     names: list[str] = list(shared)
     for rel, data in shared.items():
         if rel.endswith(".html"):
-            summaries[rel] = _link_summary(data)
+            summaries[rel] = page_links(data)
     for entry in rendered.values():
         names.extend(entry.files)
         summaries.update(entry.links)
