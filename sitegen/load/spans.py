@@ -4,6 +4,14 @@ PyYAML's composer gives every node a start mark; we walk the node tree
 ourselves so that each value's position is kept, duplicate keys are
 caught (PyYAML silently keeps the last one) and aliases are refused
 (an anchor/alias "bomb" can expand a small file into gigabytes).
+
+Speed: where PyYAML was built with libyaml, its C parser supplies the
+events (scanning and parsing are most of the time) and the same Python
+composer builds the nodes, so positions and checks are the same. A
+document the C parser refuses, or whose checks fail, is parsed again by
+the pure-Python parser, so every message and position a user sees comes
+from one parser (tests/load/test_spans.py holds the two to the same
+results).
 """
 
 from __future__ import annotations
@@ -85,6 +93,22 @@ class _Loader(Reader, Scanner, Parser, _NoAliasComposer, SafeConstructor, Resolv
         Resolver.__init__(self)
 
 
+_FastLoader: type | None = None
+if getattr(yaml, "__with_libyaml__", False):
+    from yaml._yaml import CParser
+
+    class _CLoader(_NoAliasComposer, CParser, SafeConstructor, Resolver):  # type: ignore[misc]
+        # the Python composer first in the MRO: CParser's own composer
+        # would resolve aliases silently
+        def __init__(self, stream: str) -> None:
+            CParser.__init__(self, stream)
+            _NoAliasComposer.__init__(self)
+            SafeConstructor.__init__(self)
+            Resolver.__init__(self)
+
+    _FastLoader = _CLoader
+
+
 # Dates stay dates, but YAML 1.1's "yes/no/on/off" booleans are a trap in
 # free text; keep the resolver's defaults otherwise.
 _MAX_DEPTH = 40
@@ -97,8 +121,18 @@ def parse_yaml(text: str) -> Parsed:
         YamlProblem: malformed YAML, duplicate keys, aliases, more than one
             document, non-string keys or nesting deeper than is sane.
     """
+    # the pure-Python reader's character check, which libyaml's differs from
+    if _FastLoader is not None and not Reader.NON_PRINTABLE.search(text):
+        try:
+            return _parse_with(_FastLoader, text)
+        except (yaml.YAMLError, YamlProblem):
+            pass  # said again below, by the parser whose messages we keep
+    return _parse_with(_Loader, text)
+
+
+def _parse_with(loader_class: type, text: str) -> Parsed:
     try:
-        loader = _Loader(text)
+        loader = loader_class(text)
     except yaml.YAMLError as exc:
         mark = getattr(exc, "problem_mark", None)
         pos = getattr(exc, "position", None)
@@ -162,7 +196,7 @@ def _pos(node: Node) -> tuple[int, int]:
     return (node.start_mark.line + 1, node.start_mark.column + 1)
 
 
-def _walk(node: Node, path: KeyPath, out: Parsed, loader: _Loader, depth: int) -> object:
+def _walk(node: Node, path: KeyPath, out: Parsed, loader: SafeConstructor, depth: int) -> object:
     if depth > _MAX_DEPTH:
         line, col = _pos(node)
         raise YamlProblem("yaml-too-deep", f"nesting deeper than {_MAX_DEPTH} levels", line, col)

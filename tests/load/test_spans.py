@@ -2,6 +2,11 @@
 
 import pytest
 
+from pathlib import Path
+
+import yaml
+
+from sitegen.load import spans
 from sitegen.load.spans import YamlProblem, parse_yaml
 
 
@@ -47,3 +52,43 @@ def test_nesting_limit():
     with pytest.raises(YamlProblem) as exc:
         parse_yaml(text)
     assert exc.value.rule == "yaml-too-deep"
+
+
+def _both(text):
+    """(fast result, pure-Python result): Parsed or the YamlProblem raised."""
+    out = []
+    for cls in (spans._FastLoader, spans._Loader):
+        try:
+            out.append(spans._parse_with(cls, text))
+        except spans.YamlProblem as exc:
+            out.append(exc)
+        except yaml.YAMLError as exc:
+            out.append(type(exc))
+    return out
+
+
+@pytest.mark.skipif(spans._FastLoader is None, reason="PyYAML without libyaml")
+def test_libyaml_events_give_what_the_python_parser_gives():
+    root = Path(__file__).resolve().parents[2]
+    files = sorted(
+        [*(root / "methods").rglob("*.yaml"), *(root / "tests" / "fixtures").rglob("*.yaml")]
+    )
+    assert len(files) > 100
+    odd = [
+        "a: 1\nb: [x, {c: 'é – ü', d: \"\\u00e9\"}]\n\u00e9t\u00e9: |\n  \u00fc\n  x\n",
+        "\ufeffa: 1\n",
+        "a:\n\t- b\n",
+        "a: &x 1\nb: *x\n",
+        "k: v\nk: w\n",
+    ]
+    for text in [f.read_text("utf-8", errors="replace") for f in files] + odd:
+        fast, slow = _both(text)
+        if isinstance(slow, spans.Parsed):
+            # a document the pure parser accepts: the fast one gives it exactly
+            assert isinstance(fast, spans.Parsed)
+            assert (fast.data, fast.values, fast.keys) == (slow.data, slow.values, slow.keys)
+        else:
+            # refused by the pure parser: parse_yaml's answer is its answer
+            with pytest.raises(spans.YamlProblem) as got:
+                spans.parse_yaml(text)
+            assert got.value == slow
