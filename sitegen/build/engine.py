@@ -298,11 +298,15 @@ class _Rendered:
 
     files: dict[str, tuple[str, int]]
     links: dict[str, PageLinks]
+    #: the procedure's plain words for the search index (kept here so that
+    #: the shared pages need no markdown pass over unchanged methods)
+    search_text: str = ""
 
 
 def _render_many(
     state: _WorkerState, items: Sequence[tuple[str, str, Any, list[Finding]]], options: Any
 ) -> list[tuple[str, _Rendered]]:
+    from ..render.search import procedure_words
     from ..render.site import render_method_files
 
     col = state.collection
@@ -310,13 +314,13 @@ def _render_many(
     out = []
     for mid, key, analysis, own in items:
         files = render_method_files(mid, col, analysis, own, options)
-        entry = _store_files(cache, files)
+        entry = _store_files(cache, files, procedure_words(col.methods[mid].record))
         cache.put("render", key, entry)
         out.append((mid, entry))
     return out
 
 
-def _store_files(cache: Cache, files: Mapping[str, bytes]) -> _Rendered:
+def _store_files(cache: Cache, files: Mapping[str, bytes], search_text: str) -> _Rendered:
     from ..render.links import page_links
 
     meta: dict[str, tuple[str, int]] = {}
@@ -325,17 +329,19 @@ def _store_files(cache: Cache, files: Mapping[str, bytes]) -> _Rendered:
         meta[rel] = (cache.put_blob(data), len(data))
         if rel.endswith(".html"):
             links[rel] = page_links(data)
-    return _Rendered(meta, links)
+    return _Rendered(meta, links, search_text)
 
 
 def _rerender(cache: Cache, collection: Any, mid: str, key: str, analysis: Any,
               own: list[Finding], options: Any) -> None:
+    from ..render.search import procedure_words
     from ..render.site import render_method_files
 
     files = render_method_files(mid, collection, analysis, own, options)
     for data in files.values():
         cache.put_blob(data, force=True)
-    cache.put("render", key, _store_files(cache, files))
+    entry = _store_files(cache, files, procedure_words(collection.methods[mid].record))
+    cache.put("render", key, entry)
 
 
 def _pool_call(func: Any, payload: bytes) -> bytes:
@@ -346,6 +352,18 @@ def _pool_call(func: Any, payload: bytes) -> bytes:
 
 # ----------------------------------------------------------------------------
 # Running tasks in-process or in a pool
+
+
+def _freeze_heap() -> None:
+    """Move every object alive now out of the garbage collector's reach
+    before forking workers: a worker's collections would otherwise walk
+    (and, by touching them, copy) the whole inherited collection again and
+    again, which made the per-method work grow with the collection's size
+    (the gc module's documented remedy for forked workers)."""
+    import gc
+
+    gc.collect()
+    gc.freeze()
 
 
 class _Runner:
@@ -368,6 +386,7 @@ class _Runner:
             # elsewhere it is pickled once per worker
             methods = mp.get_all_start_methods()
             ctx = mp.get_context("fork" if "fork" in methods else None)
+            _freeze_heap()
             self._pool = ProcessPoolExecutor(
                 max_workers=self.jobs, mp_context=ctx, initializer=_init_worker,
                 initargs=(self.state,),
@@ -406,6 +425,10 @@ class _Runner:
         if self._pool is not None:
             self._pool.shutdown(wait=True, cancel_futures=True)
             self._pool = None
+            # a long-lived process (sitegen serve) builds again and again
+            import gc
+
+            gc.unfreeze()
 
 
 # ----------------------------------------------------------------------------
@@ -938,7 +961,8 @@ def _build_loaded(
     rendered.update(runner.map("render", _render_many, render_todo, options))
     rendered = dict(sorted(rendered.items()))
     built = sorted(m for m, *_ in render_todo)
-    shared = render_shared(collection, analyses, findings, options)
+    shared = render_shared(collection, analyses, findings, options,
+                           {mid: entry.search_text for mid, entry in rendered.items()})
     times["render"] = time.perf_counter() - t0
 
     # -- 6. links ----------------------------------------------------------------

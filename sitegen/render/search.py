@@ -10,16 +10,23 @@ a ``<script src>``.
 
 from __future__ import annotations
 
-__all__ = ["search_documents", "search_files"]
+__all__ = ["procedure_words", "search_documents", "search_files"]
 
 import json
+from collections.abc import Mapping
 from typing import Any
 
 from .text import markdown_text
 
 
-def search_documents(collection: Any, published: dict[str, Any]) -> list[dict[str, Any]]:
-    """The documents, sorted by id; URLs are relative to the site root."""
+def search_documents(
+    collection: Any, published: dict[str, Any], texts: Mapping[str, str] | None = None
+) -> list[dict[str, Any]]:
+    """The documents, sorted by id; URLs are relative to the site root.
+
+    ``texts`` may hold :func:`procedure_words` of some methods, computed
+    earlier (a build keeps them with each method's cached pages).
+    """
     docs = []
     for mid, loaded in sorted(published.items()):
         rec = loaded.record
@@ -41,15 +48,22 @@ def search_documents(collection: Any, published: dict[str, Any]) -> list[dict[st
                 "matrix": rec.scope.matrix,
                 "reagents": " ; ".join(names),
                 "formulas": " ".join(formulas),
-                "text": markdown_text(rec.procedure),
+                "text": texts[mid] if texts and mid in texts else procedure_words(rec),
             }
         )
     return docs
 
 
-def search_files(collection: Any, published: dict[str, Any]) -> dict[str, bytes]:
+def procedure_words(record: Any) -> str:
+    """The plain words of a method record's procedure, as indexed."""
+    return markdown_text(record.procedure)
+
+
+def search_files(
+    collection: Any, published: dict[str, Any], texts: Mapping[str, str] | None = None
+) -> dict[str, bytes]:
     """``search-index.json`` and ``search-index.js``."""
-    payload = {"version": 1, "documents": search_documents(collection, published)}
+    payload = {"version": 1, "documents": search_documents(collection, published, texts)}
     text = json.dumps(payload, sort_keys=True, ensure_ascii=False, separators=(",", ":"))
     # "</" would end an inline script; the JS file is loaded by src, but a
     # theme could inline it, so keep it safe either way
