@@ -306,42 +306,32 @@ class _Rendered:
 def _render_many(
     state: _WorkerState, items: Sequence[tuple[str, str, Any, list[Finding]]], options: Any
 ) -> list[tuple[str, _Rendered]]:
-    from ..render.search import procedure_words
-    from ..render.site import render_method_files
-
     col = state.collection
     cache = Cache(state.cache_root)
-    out = []
-    for mid, key, analysis, own in items:
-        files = render_method_files(mid, col, analysis, own, options)
-        entry = _store_files(cache, files, procedure_words(col.methods[mid].record))
-        cache.put("render", key, entry)
-        out.append((mid, entry))
-    return out
+    return [
+        (mid, _render_entry(cache, col, mid, key, analysis, own, options))
+        for mid, key, analysis, own in items
+    ]
 
 
-def _store_files(cache: Cache, files: Mapping[str, bytes], search_text: str) -> _Rendered:
+def _render_entry(cache: Cache, collection: Any, mid: str, key: str, analysis: Any,
+                  own: list[Finding], options: Any, force: bool = False) -> _Rendered:
+    """Render one method's files, store them in the cache (``force``:
+    rewrite blobs already there) and keep their entry under ``key``."""
     from ..render.links import page_links
-
-    meta: dict[str, tuple[str, int]] = {}
-    links = {}
-    for rel, data in sorted(files.items()):
-        meta[rel] = (cache.put_blob(data), len(data))
-        if rel.endswith(".html"):
-            links[rel] = page_links(data)
-    return _Rendered(meta, links, search_text)
-
-
-def _rerender(cache: Cache, collection: Any, mid: str, key: str, analysis: Any,
-              own: list[Finding], options: Any) -> None:
     from ..render.search import procedure_words
     from ..render.site import render_method_files
 
     files = render_method_files(mid, collection, analysis, own, options)
-    for data in files.values():
-        cache.put_blob(data, force=True)
-    entry = _store_files(cache, files, procedure_words(collection.methods[mid].record))
+    meta: dict[str, tuple[str, int]] = {}
+    links = {}
+    for rel, data in sorted(files.items()):
+        meta[rel] = (cache.put_blob(data, force=force), len(data))
+        if rel.endswith(".html"):
+            links[rel] = page_links(data)
+    entry = _Rendered(meta, links, procedure_words(collection.methods[mid].record))
     cache.put("render", key, entry)
+    return entry
 
 
 def _pool_call(func: Any, payload: bytes) -> bytes:
@@ -1006,8 +996,8 @@ def _build_loaded(
             if mid is None or mid in repaired:
                 raise
             repaired.add(mid)
-            _rerender(cache, collection, mid, render_keys[mid], analyses.get(mid),
-                      own_findings[mid], options)
+            _render_entry(cache, collection, mid, render_keys[mid], analyses.get(mid),
+                          own_findings[mid], options, force=True)
             built = sorted({*built, mid})
     times["write"] = time.perf_counter() - t0
     report.written = True

@@ -60,7 +60,7 @@ def page_ids(data: bytes) -> set[str]:
     return set(page_links(data)[0])
 
 
-def _why_broken(page: str, href: str, names: Mapping[str, object] | set[str],
+def _why_broken(page: str, href: str, names: set[str],
                 ids: Mapping[str, frozenset[str]]) -> str | None:
     """Why ``href`` on ``page`` is broken, or None when it resolves."""
     parts = urlsplit(href)

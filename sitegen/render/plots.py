@@ -81,8 +81,9 @@ def _describe(curve: Any, indicator: Any, title: str) -> str:
         parts[-1] += f", {fmt.potential(curve.equivalence_potential_ref_V)} V vs {ref}."
     else:
         parts[-1] += "."
-    if indicator is not None and indicator.range_ref_V is not None:
-        lo, hi = indicator.range_ref_V
+    band = _band(indicator)
+    if band is not None:
+        lo, hi = band
         parts.append(
             f"Shaded band: transition range of {indicator.name},"
             f" {fmt.potential(lo)} to {fmt.potential(hi)} V vs {ref}."
