@@ -166,9 +166,10 @@ def _output_holds(out: Path, manifest: Mapping[str, tuple[str, int]], digest: st
     recorded = _read_manifest(out)
     if recorded is None or recorded.get("digest") != digest:
         return False
+    root = os.fspath(out)
     for rel, (_sha, size) in manifest.items():
         try:
-            if (out / rel).stat().st_size != size:
+            if os.stat(os.path.join(root, rel)).st_size != size:
                 return False
         except OSError:
             return False
@@ -441,41 +442,34 @@ def _load_many(items: Sequence[tuple[str, Any, str]], cache_root: Path) -> bytes
 
 def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
     """The collection, as :func:`sitegen.load.collection.load_collection`
-    builds it, with each record validated at most once per content (and
+    assembles it, with each record validated at most once per content (and
     the records not in the cache validated by ``jobs`` processes)."""
     from ..load import collection as lc
     from ..load.records import load_text
 
-    col = lc.Collection(root=root)
-    site = root / "site.yaml"
-    src = lc._read(site, cwd, col)
-    if src is not None:
-        from ..model import SiteConfig
+    def validate(model: Any, src: Any) -> Any:
+        key = _loaded_key(code, model, src)
+        hit = _loaded_hit(cache, key, src)
+        if hit is None:
+            hit = load_text(model, src)
+            cache.put("loaded", key, hit)
+        return hit
 
-        loaded, findings = _cached_load(cache, code, SiteConfig, src, load_text)
-        col.site = loaded
-        col.findings.extend(findings)
-    lc._load_glossary(root, cwd, col)
-    sr = root / "safety-rules.yaml"
-    if sr.is_file():
-        col.safety_rules_source = lc._read(sr, cwd, col)
+    col = lc.start_collection(root, cwd, validate)
     # read everything first, so that the records the cache lacks can be
     # validated in parallel; the collection is then assembled in order
-    order: list[tuple[str, Path, str]] = []
+    items = lc.read_records(col, cwd)
     results: dict[str, Any] = {}
+    keys: list[str] = []
     misses: list[tuple[str, Any, str]] = []
-    for folder, model in lc.KINDS.items():
-        for path in lc._files(root / folder):
-            src = lc._read(path, cwd, col)
-            if src is None:
-                continue
-            key = key_of("loaded", code, model.__name__, src.path, src.digest)
-            order.append((folder, path, key))
-            hit = cache.get("loaded", key)
-            if hit is not None and (hit[0] is None or hit[0].source == src):
-                results[key] = hit
-            else:
-                misses.append((folder, src, key))
+    for folder, _path, src in items:
+        key = _loaded_key(code, lc.KINDS[folder], src)
+        keys.append(key)
+        hit = _loaded_hit(cache, key, src)
+        if hit is not None:
+            results[key] = hit
+        else:
+            misses.append((folder, src, key))
     if len(misses) >= 4 * _POOL_MIN and jobs > 1:
         import multiprocessing as mp
         from concurrent.futures import ProcessPoolExecutor
@@ -492,50 +486,22 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
                 results.update(loads(fut.result()))
     else:
         for folder, src, key in misses:
-            value = load_text(lc.KINDS[folder], src)
-            cache.put("loaded", key, value)
-            results[key] = value
-    targets = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}
-    for folder, path, key in order:
-        target = targets[folder]
-        loaded, findings = results[key]
-        col.findings.extend(findings)
-        if loaded is None:
-            continue
-        rid = loaded.record.id
-        if rid != path.stem:
-            col.findings.append(
-                Finding(
-                    "id-mismatch",
-                    Severity.ERROR,
-                    f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
-                    loaded.span("id"),
-                )
-            )
-            continue
-        if rid in target:
-            col.findings.append(
-                Finding(
-                    "duplicate-id",
-                    Severity.ERROR,
-                    f"id {rid!r} is already used by {target[rid].source.path}",
-                    loaded.span("id"),
-                )
-            )
-            continue
-        target[rid] = loaded
+            results[key] = load_text(lc.KINDS[folder], src)
+            cache.put("loaded", key, results[key])
+    lc.add_records(col, items, [results[k] for k in keys])
     return col
 
 
-def _cached_load(cache: Cache, code: str, model: Any, src: Any, load_text: Any) -> Any:
-    key = key_of("loaded", code, model.__name__, src.path, src.digest)
+def _loaded_key(code: str, model: Any, src: Any) -> str:
+    return key_of("loaded", code, model.__name__, src.path, src.digest)
+
+
+def _loaded_hit(cache: Cache, key: str, src: Any) -> Any:
     hit = cache.get("loaded", key)
     # the Source inside a cached Loaded must be this very text
     if hit is not None and (hit[0] is None or hit[0].source == src):
         return hit
-    value = load_text(model, src)
-    cache.put("loaded", key, value)
-    return value
+    return None
 
 
 # ----------------------------------------------------------------------------
@@ -630,13 +596,13 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
     old_files = previous.get("files")
     if not isinstance(old_files, dict):
         old_files = {}
-    reuse: dict[str, Path] = {}
+    reuse: dict[str, str] = {}
+    root = os.fspath(out)
     for rel, (sha, size) in manifest.items():
-        old = old_files.get(rel)
-        if old == [sha, size]:
-            p = out / rel
+        if old_files.get(rel) == [sha, size]:
+            p = os.path.join(root, rel)
             try:
-                if p.stat().st_size == size:
+                if os.stat(p).st_size == size:
                     reuse[rel] = p
             except OSError:
                 pass

@@ -76,7 +76,20 @@ def _write_file(path: Path, data: bytes) -> None:
         fh.write(data)
 
 
-def _hold(path: Path) -> None:
+def _target(root: str, rel: str) -> str:
+    """``root/rel`` for a relative POSIX path that stays inside ``root``
+    (checked on the text: the staged folder holds no links to follow).
+
+    Raises:
+        OutputRefused: ``rel`` is absolute, empty or climbs out.
+    """
+    parts = rel.split("/")
+    if not rel or rel.startswith("/") or "\\" in rel or any(p in ("", ".", "..") for p in parts):
+        raise OutputRefused(f"refusing to write outside the output folder: {rel}")
+    return os.path.join(root, *parts)
+
+
+def _hold(path: str | Path) -> None:
     """Test hook: ``SITEGEN_TEST_WRITE_DELAY`` seconds between files, so a
     test can kill a build in the middle of writing."""
     delay = os.environ.get("SITEGEN_TEST_WRITE_DELAY")
@@ -87,7 +100,7 @@ def _hold(path: Path) -> None:
 
 
 def write_site(
-    out: Path, files: Mapping[str, bytes], reuse: Mapping[str, Path] | None = None
+    out: Path, files: Mapping[str, bytes], reuse: Mapping[str, str | Path] | None = None
 ) -> None:
     """Stage ``files`` beside ``out`` and swap the staged folder in.
 
@@ -114,20 +127,24 @@ def write_site(
     try:
         written: list[Path] = []
         reuse = reuse or {}
+        root = os.fspath(staging)
+        made: set[str] = {root}
         for rel in sorted(files):
-            target = (staging / rel).resolve()
-            if not target.is_relative_to(staging):
-                raise OutputRefused(f"refusing to write outside the output folder: {rel}")
+            target = _target(root, rel)
             _hold(target)
+            folder = os.path.dirname(target)
+            if folder not in made:
+                os.makedirs(folder, exist_ok=True)
+                made.add(folder)
             if rel in reuse:
-                target.parent.mkdir(parents=True, exist_ok=True)
                 try:
                     os.link(reuse[rel], target)
                     continue
                 except OSError:
                     pass
-            _write_file(target, files[rel])
-            written.append(target)
+            with open(target, "wb") as fh:
+                fh.write(files[rel])
+            written.append(Path(target))
         _write_file(staging / MARKER, _MARKER_TEXT)
         written.append(staging / MARKER)
         if (out / ".gitkeep").exists():

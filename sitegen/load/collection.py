@@ -13,9 +13,20 @@ Layout (``docs/record-format.md``)::
 
 from __future__ import annotations
 
-__all__ = ["Collection", "find_root", "load_collection", "load_paths"]
+__all__ = [
+    "KINDS",
+    "Collection",
+    "Validated",
+    "add_records",
+    "find_root",
+    "load_collection",
+    "load_paths",
+    "read_records",
+    "start_collection",
+]
 
-from collections.abc import Iterable, Sequence
+import os
+from collections.abc import Callable, Iterable, Sequence
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -81,23 +92,151 @@ def _shown(path: Path, cwd: Path) -> str:
         return str(path)
 
 
-def _read(path: Path, cwd: Path, col: Collection) -> Source | None:
-    src = read_source(path, _shown(path, cwd))
+class _Shower:
+    """Shown paths of many files: each folder is resolved once, and a file
+    only when it is a symbolic link (the shown path is the resolved one,
+    relative to ``cwd`` when inside it)."""
+
+    def __init__(self, cwd: Path) -> None:
+        self.cwd = cwd
+        self._folders: dict[Path, Path] = {}
+
+    def resolve(self, path: Path, is_link: bool) -> Path:
+        if is_link:
+            return path.resolve()
+        folder = self._folders.get(path.parent)
+        if folder is None:
+            folder = self._folders[path.parent] = path.parent.resolve()
+        return folder / path.name
+
+    def shown(self, path: Path, is_link: bool) -> str:
+        try:
+            return str(self.resolve(path, is_link).relative_to(self.cwd))
+        except ValueError:
+            return str(path)
+
+
+def _read(path: Path, cwd: Path, col: Collection, shown: str | None = None) -> Source | None:
+    shown = shown if shown is not None else _shown(path, cwd)
+    src = read_source(path, shown)
     if isinstance(src, SourceProblem):
         col.findings.append(
-            Finding(
-                src.rule, Severity.ERROR, src.message, Span(_shown(path, cwd), src.line, src.col)
-            )
+            Finding(src.rule, Severity.ERROR, src.message, Span(shown, src.line, src.col))
         )
         return None
     col.sources[src.path] = src
     return src
 
 
-def _files(folder: Path) -> list[Path]:
+def _files(folder: Path) -> list[tuple[Path, bool]]:
+    """(path, is a symbolic link) of the record files in ``folder``, sorted."""
     if not folder.is_dir():
         return []
-    return sorted(p for p in folder.iterdir() if p.suffix in {".yaml", ".yml"} and p.is_file())
+    out = []
+    with os.scandir(folder) as it:
+        for e in it:
+            if e.name.endswith((".yaml", ".yml")) and e.is_file():
+                out.append((folder / e.name, e.is_symlink()))
+    return sorted(out)
+
+
+#: One validated file: (the loaded record or None, its findings), as
+#: :func:`sitegen.load.records.load_text` returns it.
+Validated = tuple[Loaded | None, list[Finding]]
+
+
+def start_collection(
+    root: Path, cwd: Path, validate: Callable[[type[Any], Source], Validated] = load_text
+) -> Collection:
+    """A collection holding the site settings, the glossary and the
+    lab's safety-rules source, but no records yet (``validate`` checks
+    site.yaml)."""
+    col = Collection(root=root)
+    src = _read(root / "site.yaml", cwd, col)
+    if src is not None:
+        loaded, findings = validate(SiteConfig, src)
+        col.site = loaded
+        col.findings.extend(findings)
+    _load_glossary(root, cwd, col)
+    sr = root / "safety-rules.yaml"
+    if sr.is_file():
+        col.safety_rules_source = _read(sr, cwd, col)
+    return col
+
+
+def read_records(
+    col: Collection, cwd: Path, only: Iterable[Path] | None = None
+) -> list[tuple[str, Path, Source]]:
+    """Read every record file of the kind folders, in order: (kind folder,
+    path, source). A file that cannot be read, or that links out of the
+    source folder, becomes a finding and is marked unloadable. ``only``:
+    the method record files to read (all by default)."""
+    shower = _Shower(cwd)
+    root_real = col.root.resolve()
+    only_set = {p.resolve() for p in only} if only is not None else None
+    out: list[tuple[str, Path, Source]] = []
+    for folder in KINDS:
+        failed = col.unloadable.setdefault(folder, set())
+        for path, is_link in _files(col.root / folder):
+            real = shower.resolve(path, is_link)
+            if folder == "records" and only_set is not None and real not in only_set:
+                continue
+            if not real.is_relative_to(root_real):
+                col.findings.append(
+                    Finding(
+                        "outside-source",
+                        Severity.ERROR,
+                        f"{path.name} is a link to {real}, outside the source folder;"
+                        " records must live in the source folder",
+                        Span(shower.shown(path, is_link), 1, 1),
+                    )
+                )
+                failed.add(path.stem)
+                continue
+            src = _read(path, cwd, col, shower.shown(path, is_link))
+            if src is None:
+                failed.add(path.stem)
+                continue
+            out.append((folder, path, src))
+    return out
+
+
+def add_records(
+    col: Collection, items: Sequence[tuple[str, Path, Source]], results: Sequence[Validated]
+) -> None:
+    """Put validated records into the collection, in the order read; a
+    record whose id differs from its file name, or repeats one, is
+    refused with a finding."""
+    tables = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}
+    for (folder, path, _src), (loaded, findings) in zip(items, results, strict=True):
+        target = tables[folder]
+        col.findings.extend(findings)
+        if loaded is None:
+            col.unloadable.setdefault(folder, set()).add(path.stem)
+            continue
+        rid = loaded.record.id
+        if rid != path.stem:
+            col.findings.append(
+                Finding(
+                    "id-mismatch",
+                    Severity.ERROR,
+                    f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
+                    loaded.span("id"),
+                )
+            )
+            continue
+        if rid in target:
+            first = target[rid].source.path
+            col.findings.append(
+                Finding(
+                    "duplicate-id",
+                    Severity.ERROR,
+                    f"id {rid!r} is already used by {first}",
+                    loaded.span("id"),
+                )
+            )
+            continue
+        target[rid] = loaded
 
 
 def load_collection(
@@ -113,26 +252,9 @@ def load_collection(
         cwd: paths in findings are shown relative to this folder.
     """
     cwd = (cwd or Path.cwd()).resolve()
-    col = Collection(root=root)
-    site = root / "site.yaml"
-    src = _read(site, cwd, col)
-    if src is not None:
-        loaded, findings = load_text(SiteConfig, src)
-        col.site = loaded
-        col.findings.extend(findings)
-    _load_glossary(root, cwd, col)
-    sr = root / "safety-rules.yaml"
-    if sr.is_file():
-        col.safety_rules_source = _read(sr, cwd, col)
-    only_set = {p.resolve() for p in only} if only is not None else None
-    for folder, model in KINDS.items():
-        target = {"records": col.methods, "reagents": col.reagents, "indicators": col.indicators}[
-            folder
-        ]
-        files = _files(root / folder)
-        if folder == "records" and only_set is not None:
-            files = [f for f in files if f.resolve() in only_set]
-        _load_kind(files, model, target, cwd, col, folder)
+    col = start_collection(root, cwd)
+    items = read_records(col, cwd, only)
+    add_records(col, items, [load_text(KINDS[folder], src) for folder, _p, src in items])
     return col
 
 
@@ -164,62 +286,6 @@ def load_paths(paths: Sequence[Path], cwd: Path | None = None) -> Collection:
     if not whole:
         col.selected = {_shown(f, cwd) for f in files}
     return col
-
-
-def _load_kind(
-    files: list[Path],
-    model: type[Any],
-    target: dict[str, Loaded],
-    cwd: Path,
-    col: Collection,
-    folder: str = "",
-) -> None:
-    failed = col.unloadable.setdefault(folder, set())
-    for path in files:
-        if not path.resolve().is_relative_to(col.root.resolve()):
-            col.findings.append(
-                Finding(
-                    "outside-source",
-                    Severity.ERROR,
-                    f"{path.name} is a link to {path.resolve()}, outside the source folder;"
-                    " records must live in the source folder",
-                    Span(_shown(path, cwd), 1, 1),
-                )
-            )
-            failed.add(path.stem)
-            continue
-        src = _read(path, cwd, col)
-        if src is None:
-            failed.add(path.stem)
-            continue
-        loaded, findings = load_text(model, src)
-        col.findings.extend(findings)
-        if loaded is None:
-            failed.add(path.stem)
-            continue
-        rid = loaded.record.id
-        if rid != path.stem:
-            col.findings.append(
-                Finding(
-                    "id-mismatch",
-                    Severity.ERROR,
-                    f"id {rid!r} differs from the file name {path.stem!r}; they must be equal",
-                    loaded.span("id"),
-                )
-            )
-            continue
-        if rid in target:
-            first = target[rid].source.path
-            col.findings.append(
-                Finding(
-                    "duplicate-id",
-                    Severity.ERROR,
-                    f"id {rid!r} is already used by {first}",
-                    loaded.span("id"),
-                )
-            )
-            continue
-        target[rid] = loaded
 
 
 def _load_glossary(root: Path, cwd: Path, col: Collection) -> None:

@@ -193,3 +193,37 @@ def test_keep_going_leaves_out_a_record_that_does_not_load(site: Path) -> None:
     assert report.written
     assert [mid for mid, _ in report.excluded] == [bad]
     assert not (site / f"out/methods/{bad}").exists()
+
+
+def test_the_cached_load_assembles_the_collection_as_the_loader_does(
+    site: Path, tmp_path: Path
+) -> None:
+    # A link out of the source folder, a record that does not validate and
+    # one whose id differs from its file name: the engine's cached, parallel
+    # load must report them exactly as load_collection does (same findings,
+    # same unloadable ids), cold and from the cache.
+    from sitegen.build.cache import Cache, code_digest
+    from sitegen.build.engine import _load
+    from sitegen.load.collection import load_collection
+
+    records = site / "methods" / "records"
+    secret = tmp_path / "elsewhere.yaml"
+    secret.write_text("id: elsewhere\n", encoding="utf-8")
+    (records / "elsewhere.yaml").symlink_to(secret)
+    (records / "broken.yaml").write_text("id: broken\ntitle: [unclosed\n", "utf-8")
+    text = (records / "copper-iodometric.yaml").read_text("utf-8")
+    (records / "renamed.yaml").write_text(text, "utf-8")
+    root, cwd = Path("methods"), Path.cwd().resolve()
+    want = load_collection(root, cwd=cwd)
+    rules = {f.rule for f in want.findings}
+    assert {"outside-source", "id-mismatch"} <= rules, rules
+    cache = Cache(tmp_path / "cache")
+    for jobs in (1, 2, 1):  # cold in one process, cold in a pool, then cached
+        if jobs == 2:
+            cache = Cache(tmp_path / "cache2")
+        got = _load(root, cwd, cache, code_digest("test"), jobs)
+        assert got.findings == want.findings
+        assert got.unloadable == want.unloadable
+        assert list(got.methods) == list(want.methods)
+        assert list(got.reagents) == list(want.reagents)
+        assert got.sources.keys() == want.sources.keys()
