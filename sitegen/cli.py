@@ -29,6 +29,12 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"{self.prog}: error: {message}\n")
 
 
+_CACHE_HELP = (
+    "where results are kept between builds (default: $SITEGEN_CACHE, else .sitegen-cache/"
+    " beside the source folder)"
+)
+
+
 def _parser() -> argparse.ArgumentParser:
     p = _Parser(
         prog=PROG,
@@ -60,6 +66,7 @@ def _parser() -> argparse.ArgumentParser:
     )
     b.add_argument("--theme", type=Path, default=None, help="a theme folder of your own")
     b.add_argument("--today", type=_dt.date.fromisoformat, default=None)
+    b.add_argument("--cache-dir", type=Path, default=None, help=_CACHE_HELP)
 
     s = sub.add_parser("schema", help="write the JSON Schema of the record format")
     s.add_argument("--out", type=Path, default=None, help="file to write (default: stdout)")
@@ -79,6 +86,9 @@ def _parser() -> argparse.ArgumentParser:
     sv.add_argument("--out", type=Path, default=Path("output"))
     sv.add_argument("--host", default="127.0.0.1")
     sv.add_argument("--port", type=int, default=8000)
+    sv.add_argument("--theme", type=Path, default=None, help="a theme folder of your own")
+    sv.add_argument("--jobs", type=int, default=None, help="worker processes (default: CPUs)")
+    sv.add_argument("--cache-dir", type=Path, default=None, help=_CACHE_HELP)
     return p
 
 
@@ -155,6 +165,7 @@ def _cmd_build(args: argparse.Namespace, out: TextIO, err: TextIO) -> int:
                 theme=args.theme,
                 jobs=args.jobs,
                 progress=err,
+                cache_dir=args.cache_dir,
             )
         else:
             from .build.run import build_site

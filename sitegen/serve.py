@@ -184,6 +184,7 @@ def _build_once(args: Any, state: _State, err: TextIO) -> bool:
             Path(args.source), Path(args.out),
             settings=Settings(today=build_date(), strict=bool(getattr(args, "strict", False))),
             theme=getattr(args, "theme", None), jobs=getattr(args, "jobs", None), progress=err,
+            cache_dir=getattr(args, "cache_dir", None),
         )
     except OutputRefused as exc:
         print(f"sitegen serve: error: {exc}", file=err)

@@ -13,25 +13,62 @@ __all__ = [
     "Measure",
     "UnitError",
     "parse_measure",
-    "ureg",
+    "registry",
+    "use_cache_folder",
 ]
 
 import functools
 import re
 from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
 
-import pint
+#: Where pint may keep its parsed unit definitions between processes
+#: (see :func:`use_cache_folder`); None: parse them in every process.
+_CACHE_FOLDER: list[Path | None] = [None]
 
-# One registry for the whole process: pint quantities from different
-# registries cannot be combined.
-ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
-for _name, _definition in (
-    ("percent", "percent = 0.01 = %"),
-    ("permille", "permille = 0.001 = ‰"),
-    ("ppm", "ppm = 1e-6"),
-):
-    if _name not in ureg:  # newer pint releases define some of these already
-        ureg.define(_definition)
+
+def use_cache_folder(folder: Path | None) -> None:
+    """Let the unit registry keep its parsed definitions under ``folder``
+    (pint's own disk cache): building the registry then takes a few tens
+    of milliseconds instead of a few hundred. Takes effect only before the
+    registry is first used."""
+    _CACHE_FOLDER[0] = folder
+
+
+@functools.cache
+def registry() -> Any:
+    """The process's one pint registry (quantities from different
+    registries cannot be combined), built on first use: importing pint and
+    parsing its definitions is most of the cost of reading a record, and a
+    build that reuses every record needs neither."""
+    import pint
+
+    kwargs: dict[str, Any] = {"autoconvert_offset_to_baseunit": True}
+    ureg = None
+    if _CACHE_FOLDER[0] is not None:
+        try:
+            ureg = pint.UnitRegistry(cache_folder=_CACHE_FOLDER[0], **kwargs)
+        except Exception:  # an unwritable or damaged cache: parse afresh
+            ureg = None
+    if ureg is None:
+        ureg = pint.UnitRegistry(**kwargs)
+    for name, definition in (
+        ("percent", "percent = 0.01 = %"),
+        ("permille", "permille = 0.001 = ‰"),
+        ("ppm", "ppm = 1e-6"),
+    ):
+        if name not in ureg:  # newer pint releases define some of these already
+            ureg.define(definition)
+    return ureg
+
+
+def __getattr__(name: str) -> Any:
+    # ``from sitegen.units import ureg`` builds the registry when asked
+    if name == "ureg":
+        return registry()
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
+
 
 #: Field kinds and the base unit values are normalised to. The key is the
 #: word used in schema descriptions and messages.
@@ -102,6 +139,9 @@ def parse_measure(text: str | int | float, kind: str) -> Measure:
         unit_text = "mol/L"
     if unit_text == "" and base not in {"", "percent"}:
         raise UnitError(f"{raw!r} has no unit; write it with one, e.g. '{number} {base}'")
+    import pint
+
+    ureg = registry()
     try:
         unit = ureg.Unit(unit_text) if unit_text else ureg.dimensionless
         q = ureg.Quantity(float(number), unit)

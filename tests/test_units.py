@@ -34,3 +34,32 @@ def test_reads_and_normalises(text, kind, value, decimals):
 def test_rejects(text, kind):
     with pytest.raises(UnitError):
         parse_measure(text, kind)
+
+
+def test_a_registry_read_from_pint_disk_cache_converts_the_same(tmp_path):
+    # The build lets pint keep its parsed definitions on disk; a registry
+    # restored from there must read quantities exactly as a fresh one does.
+    import json
+    import subprocess
+    import sys
+
+    texts = [("25.00 mL", "volume"), ("25 °C", "temperature"), ("250.0 mg", "mass"),
+             ("20 mmol/L", "concentration"), ("12.5 %", "mass_fraction")]
+    prog = (
+        "import json, sys\n"
+        "from pathlib import Path\n"
+        "import sitegen.units as u\n"
+        "if sys.argv[1]: u.use_cache_folder(Path(sys.argv[1]))\n"
+        f"print(json.dumps([u.parse_measure(t, k).value for t, k in {texts!r}]))\n"
+    )
+
+    def run(folder: str) -> list[float]:
+        out = subprocess.run([sys.executable, "-c", prog, folder], capture_output=True,
+                             text=True, check=True)
+        return json.loads(out.stdout)
+
+    fresh = run("")
+    assert run(str(tmp_path)) == fresh  # writes the cache
+    assert any(tmp_path.iterdir())
+    assert run(str(tmp_path)) == fresh  # reads it
+    assert fresh == pytest.approx([25.0, 298.15, 0.25, 0.02, 12.5], rel=1e-12)  # SI brochure

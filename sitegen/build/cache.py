@@ -158,19 +158,22 @@ class Cache:
 
     def __init__(self, root: Path) -> None:
         self.root = Path(root)
+        # plain strings: a build asks for thousands of entries and blobs
+        self._base = os.fspath(self.root)
 
     def __repr__(self) -> str:
         return f"Cache({str(self.root)!r})"
 
     # -- pickled entries --------------------------------------------------
 
-    def _entry(self, kind: str, key: str) -> Path:
-        return self.root / "entries" / kind / key[:2] / f"{key}.pickle"
+    def _entry(self, kind: str, key: str) -> str:
+        return f"{self._base}/entries/{kind}/{key[:2]}/{key}.pickle"
 
     def get(self, kind: str, key: str) -> Any | None:
         """The value stored under ``kind``/``key``, or None."""
         try:
-            data = self._entry(kind, key).read_bytes()
+            with open(self._entry(kind, key), "rb") as fh:
+                data = fh.read()
         except OSError:
             return None
         try:
@@ -186,8 +189,8 @@ class Cache:
 
     # -- content-addressed blobs -----------------------------------------
 
-    def _blob(self, digest: str) -> Path:
-        return self.root / "blobs" / digest[:2] / digest
+    def _blob(self, digest: str) -> str:
+        return f"{self._base}/blobs/{digest[:2]}/{digest}"
 
     def put_blob(self, data: bytes, digest: str | None = None, force: bool = False) -> str:
         """Store file contents; returns their sha256 digest.
@@ -197,7 +200,7 @@ class Cache:
         """
         digest = digest or digest_bytes(data)
         path = self._blob(digest)
-        if force or not path.is_file():
+        if force or not os.path.isfile(path):
             _atomic_write(path, data)
         return digest
 
@@ -205,7 +208,8 @@ class Cache:
         """The contents stored under ``digest``, checked against it; None
         when missing or damaged."""
         try:
-            data = self._blob(digest).read_bytes()
+            with open(self._blob(digest), "rb") as fh:
+                data = fh.read()
         except OSError:
             return None
         if digest_bytes(data) != digest:
@@ -214,12 +218,13 @@ class Cache:
 
     def has_blob(self, digest: str) -> bool:
         """Whether a blob is stored (not verified; :meth:`get_blob` is)."""
-        return self._blob(digest).is_file()
+        return os.path.isfile(self._blob(digest))
 
 
-def _atomic_write(path: Path, data: bytes) -> None:
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=".tmp-", suffix=path.suffix)
+def _atomic_write(path: str, data: bytes) -> None:
+    folder = os.path.dirname(path)
+    os.makedirs(folder, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(dir=folder, prefix=".tmp-", suffix=os.path.splitext(path)[1])
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)

@@ -264,6 +264,8 @@ class _WorkerState:
     cache_root: Path
     #: the safety rule set (built-in plus the lab's own), compiled once
     safety_rules: Any = None
+    #: the generator's code digest (part of every cache key)
+    code: str = ""
 
 
 _STATE: list[_WorkerState] = []  # one entry inside a worker process
@@ -310,20 +312,53 @@ def _render_many(
     col = state.collection
     cache = Cache(state.cache_root)
     return [
-        (mid, _render_entry(cache, col, mid, key, analysis, own, options))
+        (mid, _render_entry(cache, state.code, col, mid, key, analysis, own, options))
         for mid, key, analysis, own in items
     ]
 
 
-def _render_entry(cache: Cache, collection: Any, mid: str, key: str, analysis: Any,
-                  own: list[Finding], options: Any, force: bool = False) -> _Rendered:
+class _Drawings:
+    """The curve drawings of earlier builds, by drawing key (see
+    :func:`sitegen.render.plots.curve_svg`): a record whose text changed
+    but whose curve did not is rendered without importing matplotlib."""
+
+    def __init__(self, cache: Cache, code: str) -> None:
+        self.cache = cache
+        # the drawing key covers what is drawn; the code (how it is drawn)
+        # and the plotting library's version are in the prefix
+        self._prefix = key_of("drawing", code, _plot_library_version())
+
+    def get(self, key: str) -> str | None:
+        value = self.cache.get("drawing", key_of(self._prefix, key))
+        return value if isinstance(value, str) else None
+
+    def __setitem__(self, key: str, value: str) -> None:
+        self.cache.put("drawing", key_of(self._prefix, key), value)
+
+
+def _plot_library_version() -> str:
+    # read from the installed metadata: importing matplotlib to ask would
+    # cost what the drawing cache saves
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("matplotlib")
+    except PackageNotFoundError:  # pragma: no cover - a dependency
+        return "unknown"
+
+
+def _render_entry(cache: Cache, code: str, collection: Any, mid: str, key: str,
+                  analysis: Any, own: list[Finding], options: Any,
+                  force: bool = False) -> _Rendered:
     """Render one method's files, store them in the cache (``force``:
     rewrite blobs already there) and keep their entry under ``key``."""
     from ..render.links import page_links
     from ..render.search import procedure_words
     from ..render.site import render_method_files
 
-    files = render_method_files(mid, collection, analysis, own, options)
+    # (a forced render, which repairs a damaged cache, draws afresh)
+    files = render_method_files(mid, collection, analysis, own, options,
+                                None if force else _Drawings(cache, code))
     meta: dict[str, tuple[str, int]] = {}
     links = {}
     for rel, data in sorted(files.items()):
@@ -741,13 +776,16 @@ def build(
 
     # -- 2. load -----------------------------------------------------------------
     t0 = time.perf_counter()
+    from ..units import use_cache_folder
+
+    use_cache_folder(cache_root / "units")
     collection = _load(source, cwd, cache, code, jobs)
     times["load"] = time.perf_counter() - t0
 
     from ..hazards.rules_engine import load_rules
 
     rules = load_rules(collection.safety_rules_source)
-    runner = _Runner(jobs, _WorkerState(collection, cache_root, rules), ticker)
+    runner = _Runner(jobs, _WorkerState(collection, cache_root, rules, code), ticker)
     try:
         report, manifest, digest = _build_loaded(
             collection, out, cache, code, settings, keep_going, theme_dir, theme_digest,
@@ -962,7 +1000,7 @@ def _build_loaded(
             if mid is None or mid in repaired:
                 raise
             repaired.add(mid)
-            _render_entry(cache, collection, mid, render_keys[mid], analyses.get(mid),
+            _render_entry(cache, code, collection, mid, render_keys[mid], analyses.get(mid),
                           own_findings[mid], options, force=True)
             built = sorted({*built, mid})
     times["write"] = time.perf_counter() - t0

@@ -39,7 +39,7 @@ import json
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from markupsafe import Markup
 
@@ -47,6 +47,9 @@ from ..errors import Finding, Severity, sort_findings
 from . import fmt
 from .chemtext import reaction_html, species_html
 from .text import glossary_anchor, markdown_html
+
+if TYPE_CHECKING:
+    from .plots import DrawingStore
 
 #: shown with every hazard block, on every reagent page and bench sheet
 SAFETY_PRECEDENCE = (
@@ -389,7 +392,8 @@ def _couple_rows(record: Any, analysis: Any, ref: str) -> list[dict[str, Any]]:
     return rows
 
 
-def _curve_block(record: Any, analysis: Any, ref: str, mid: str) -> dict[str, Any] | None:
+def _curve_block(record: Any, analysis: Any, ref: str, mid: str,
+                 drawings: DrawingStore | None = None) -> dict[str, Any] | None:
     if analysis is None or analysis.curve is None:
         return None
     from .plots import curve_key, curve_svg
@@ -425,7 +429,7 @@ def _curve_block(record: Any, analysis: Any, ref: str, mid: str) -> dict[str, An
             )
         )
     return {
-        "svg": Markup(curve_svg(cv, ind, record.title, prefix=f"curve-{mid}")),
+        "svg": Markup(curve_svg(cv, ind, record.title, prefix=f"curve-{mid}", drawings=drawings)),
         "key": curve_key(cv, ind),
         "note": cv.note,
         "assumption": cv.assumption,
@@ -614,8 +618,10 @@ def method_page(
     analysis: Any,
     findings: Sequence[Finding],
     options: Any,
+    drawings: DrawingStore | None = None,
 ) -> Page:
-    """The method page ``methods/<id>/index.html``."""
+    """The method page ``methods/<id>/index.html``; ``drawings``: see
+    :func:`sitegen.render.plots.curve_svg`."""
     path = method_path(mid)
     loaded = collection.methods[mid]
     rec = loaded.record
@@ -649,7 +655,7 @@ def method_page(
         if analysis is not None and analysis.electrons is not None
         else fmt.MISSING,
     }
-    ctx["curve"] = _curve_block(rec, analysis, ref, mid)
+    ctx["curve"] = _curve_block(rec, analysis, ref, mid, drawings)
     ctx["exports"] = {"csv": "curve.csv" if ctx["curve"] else None, "json": "method.json"}
     ctx["procedure"] = Markup(markdown_html(rec.procedure, _glossary_hrefs(collection, root)))
     ctx["calc"] = _calc_block(rec, analysis)
@@ -837,26 +843,38 @@ def archive_page(collection: Any, options: Any) -> Page:
     return Page(path, "archive.html", ctx)
 
 
-def _uses(collection: Any, options: Any, root: str, rid: str) -> list[dict[str, Any]]:
-    rows = []
+def reagent_uses(collection: Any, options: Any) -> dict[str, list[tuple[str, Any]]]:
+    """Reagent id -> (method id, use) of every published method naming it,
+    in one pass over the methods (the reagent pages list them)."""
+    out: dict[str, list[tuple[str, Any]]] = {}
     for mid, loaded in published_methods(collection, options).items():
-        rec = loaded.record
-        roles = [u for u in rec.reagents if u.ref == rid]
-        for use in roles:
-            rows.append(
-                {
-                    "title": rec.title,
-                    "href": root + method_path(mid),
-                    "role": _ROLE_LABEL.get(use.role.value, use.role.value),
-                    "status_label": _STATUS_LABEL[rec.status.value],
-                    "amount": use.amount or "",
-                }
-            )
+        for use in loaded.record.reagents:
+            out.setdefault(use.ref, []).append((mid, use))
+    return out
+
+
+def _uses(collection: Any, root: str, found: Sequence[tuple[str, Any]]) -> list[dict[str, Any]]:
+    rows = []
+    for mid, use in found:
+        rec = collection.methods[mid].record
+        rows.append(
+            {
+                "title": rec.title,
+                "href": root + method_path(mid),
+                "role": _ROLE_LABEL.get(use.role.value, use.role.value),
+                "status_label": _STATUS_LABEL[rec.status.value],
+                "amount": use.amount or "",
+            }
+        )
     return sorted(rows, key=lambda r: (_fold(r["title"]), r["role"]))
 
 
-def reagent_page(rid: str, collection: Any, options: Any) -> Page:
-    """``reagents/<id>/index.html``."""
+def reagent_page(
+    rid: str, collection: Any, options: Any,
+    uses: Mapping[str, Sequence[tuple[str, Any]]] | None = None,
+) -> Page:
+    """``reagents/<id>/index.html``; ``uses``: :func:`reagent_uses`, when
+    the caller renders several reagent pages."""
     path = reagent_path(rid)
     rec = collection.reagents[rid].record
     ctx = site_context(collection, options, path, rec.name)
@@ -914,7 +932,9 @@ def reagent_page(rid: str, collection: Any, options: Any) -> Page:
     ctx["hazards"] = hazards
     ctx["sds"] = SDS_GOVERNS
     ctx["precedence"] = SAFETY_PRECEDENCE
-    ctx["uses"] = _uses(collection, options, root, rid)
+    if uses is None:
+        uses = reagent_uses(collection, options)
+    ctx["uses"] = _uses(collection, root, uses.get(rid, ()))
     published = published_methods(collection, options)
     sid = rec.standardised_by
     ctx["standardised_by"] = (

@@ -17,14 +17,14 @@ canvas), the margins are fixed, and the key is HTML beside the figure
 
 from __future__ import annotations
 
-__all__ = ["PALETTE", "curve_key", "curve_svg"]
+__all__ = ["PALETTE", "DrawingStore", "curve_key", "curve_svg", "drawing_key"]
 
 import html
 import io
 import re
 from dataclasses import dataclass
 from functools import cache
-from typing import Any
+from typing import Any, Protocol
 
 from . import fmt
 
@@ -203,7 +203,35 @@ def _draw(c: _Canvas, curve: Any, indicator: Any) -> str:
     return buf.getvalue()
 
 
-def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> str:
+class DrawingStore(Protocol):
+    """Where drawings are kept by :func:`drawing_key` (a dict will do)."""
+
+    def get(self, key: str) -> str | None: ...
+
+    def __setitem__(self, key: str, value: str) -> None: ...
+
+
+def drawing_key(curve: Any, indicator: Any) -> str:
+    """A digest of everything :func:`curve_svg` draws (the points, the
+    equivalence point, the reference and the indicator band): two curves
+    with the same key give the same drawing, whatever their titles."""
+    import hashlib
+
+    import numpy as np
+
+    h = hashlib.sha256()
+    for arr in (curve.volumes_mL, curve.E_vs_ref):
+        h.update(np.ascontiguousarray(np.asarray(arr, dtype=float)).tobytes())
+        h.update(b"|")
+    epot = curve.equivalence_potential_ref_V
+    h.update(repr((float(curve.equivalence_volume_mL),
+                   float(epot) if epot is not None else None,
+                   str(curve.reference), _band(indicator))).encode())
+    return h.hexdigest()
+
+
+def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve",
+              drawings: DrawingStore | None = None) -> str:
     """The titration curve as an inline ``<svg>`` element.
 
     Args:
@@ -217,8 +245,19 @@ def curve_svg(curve: Any, indicator: Any, title: str, prefix: str = "curve") -> 
         SVG markup without XML prolog or DOCTYPE, with ``role="img"`` and
         ``<title>``/``<desc>`` referenced by ``aria-labelledby``. The key
         to its lines is :func:`curve_key`.
+
+    ``drawings``: matplotlib's output by :func:`drawing_key`, reused when
+    present and filled when not (a build keeps it between runs, so that a
+    record whose text changed but whose curve did not needs no plotting
+    library at all).
     """
-    return _finish(_draw(_canvas(), curve, indicator), curve, indicator, title, prefix)
+    if drawings is None:
+        return _finish(_draw(_canvas(), curve, indicator), curve, indicator, title, prefix)
+    key = drawing_key(curve, indicator)
+    raw = drawings.get(key)
+    if raw is None:
+        raw = drawings[key] = _draw(_canvas(), curve, indicator)
+    return _finish(raw, curve, indicator, title, prefix)
 
 
 def _finish(svg: str, curve: Any, indicator: Any, title: str, prefix: str) -> str:

@@ -15,13 +15,16 @@ import datetime as _dt
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from ..errors import Finding
 from . import pages
 from .env import environment
 from .exports import curve_csv, method_json
 from .search import search_files
+
+if TYPE_CHECKING:
+    from .plots import DrawingStore
 
 
 @dataclass(frozen=True)
@@ -53,6 +56,7 @@ def render_method_files(
     analysis: Any,
     method_findings: Sequence[Finding],
     options: RenderOptions,
+    drawings: DrawingStore | None = None,
 ) -> dict[str, bytes]:
     """One method's own files: its page, bench sheet, curve.csv and
     method.json.
@@ -64,12 +68,16 @@ def render_method_files(
         method_findings: the findings of this method (see
             :func:`sitegen.render.pages.method_findings`).
         options: render options.
+        drawings: the curve drawings already made, by
+            :func:`sitegen.render.plots.drawing_key` (see
+            :func:`sitegen.render.plots.curve_svg`).
     """
     loaded = collection.methods[method_id]
     base = f"methods/{method_id}/"
     out = {
         base + "index.html": _render(
-            pages.method_page(method_id, collection, analysis, method_findings, options), options
+            pages.method_page(method_id, collection, analysis, method_findings, options, drawings),
+            options,
         ),
         base + "bench.html": _render(pages.bench_page(method_id, collection, analysis, options), options),
         base + "method.json": method_json(loaded, analysis, method_findings),
@@ -115,7 +123,10 @@ def render_shared(
         pages.reagents_index_page(collection, options),
         pages.indicators_index_page(collection, options),
     ]
-    page_list += [pages.reagent_page(r, collection, options) for r in sorted(collection.reagents)]
+    uses = pages.reagent_uses(collection, options)
+    page_list += [
+        pages.reagent_page(r, collection, options, uses) for r in sorted(collection.reagents)
+    ]
     page_list += [
         pages.indicator_page(i, collection, options) for i in sorted(collection.indicators)
     ]

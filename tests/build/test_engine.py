@@ -10,7 +10,7 @@ import shutil
 from pathlib import Path
 
 import pytest
-from conftest import contents, do_build, tree_hashes
+from conftest import contents, do_build, run_cli, tree_hashes
 
 from sitegen.build.engine import MANIFEST
 
@@ -227,3 +227,21 @@ def test_the_cached_load_assembles_the_collection_as_the_loader_does(
         assert list(got.methods) == list(want.methods)
         assert list(got.reagents) == list(want.reagents)
         assert got.sources.keys() == want.sources.keys()
+
+
+def test_a_prose_edit_is_rebuilt_without_the_plotting_library(site: Path) -> None:
+    # The curve's drawing is kept by what it draws: changing a record's
+    # procedure text re-renders its page from the kept drawing (no
+    # matplotlib import in the whole process), and the site equals a cold
+    # build of the edited sources.
+    _edit(site / "methods" / "records" / "copper-iodometric.yaml",
+          "\nprocedure: |\n", "\nprocedure: |\n  0. Check the burette tip for bubbles.\n")
+    r = run_cli("build", "methods", "--out", "out", "--theme", "theme", "--jobs", "2",
+                "--cache-dir", "cache", cwd=site, env={"PYTHONPROFILEIMPORTTIME": "1"})
+    assert r.returncode == 0, r.stderr[-3000:]
+    assert "1 method(s) built" in r.stderr
+    imported = {line.rsplit("|", 1)[-1].strip() for line in r.stderr.splitlines()
+                if line.startswith("import time:")}
+    assert "sitegen.analyse" in imported  # the record was analysed again
+    assert not any(m == "matplotlib" or m.startswith("matplotlib.") for m in imported)
+    assert contents(site / "out") == _cold_contents(site)

@@ -124,3 +124,25 @@ def test_key_lists_what_is_drawn():
     assert key[0]["colour"] == plots.PALETTE["curve"]
     c = CurveInfo(**{**_curve().__dict__, "equivalence_potential_ref_V": None})
     assert [k["swatch"] for k in curve_key(c, None)] == ["line", "dashed"]
+
+
+def test_kept_drawings_give_the_same_figure_and_differ_when_the_curve_does():
+    import dataclasses
+
+    store: dict[str, str] = {}
+    plain = curve_svg(_curve(), IND, "Iron", prefix="p")
+    first = curve_svg(_curve(), IND, "Iron", prefix="p", drawings=store)
+    assert first == plain and len(store) == 1
+    # the title and prefix are not drawn by matplotlib: same drawing reused
+    again = curve_svg(_curve(), IND, "Other title", prefix="q", drawings=store)
+    assert len(store) == 1
+    assert again == curve_svg(_curve(), IND, "Other title", prefix="q")
+    # anything drawn changes the key: the points, the band, the reference
+    shifted = dataclasses.replace(_curve(), E_vs_ref=_curve().E_vs_ref + 0.001)
+    other_ref = dataclasses.replace(_curve(), reference="Ag/AgCl")
+    keys = {plots.drawing_key(c, i) for c, i in
+            [(_curve(), IND), (shifted, IND), (_curve(), None), (other_ref, IND)]}
+    assert len(keys) == 4
+    assert curve_svg(shifted, IND, "Iron", prefix="p", drawings=store) == curve_svg(
+        shifted, IND, "Iron", prefix="p")
+    assert len(store) == 2
