@@ -623,7 +623,7 @@ class _LazyFiles(Mapping[str, bytes]):
 def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
              manifest: dict[str, tuple[str, int]], digest: str) -> bool:
     """Write the site unless ``out`` already holds it; True if written."""
-    from .write import write_site
+    from .write import spare_dir, write_site
 
     if _output_holds(out, manifest, digest):
         return False
@@ -641,10 +641,20 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
                     reuse[rel] = p
             except OSError:
                 pass
+    # the spare folder holds the site before the current one: the files it
+    # holds with the new bytes stay, the others are replaced (write_site
+    # discards a spare that a killed build left half-changed)
+    spare = _read_manifest(spare_dir(out)) or {}
+    spare_files = spare.get("files")
+    holds = (
+        {rel for rel, entry in spare_files.items()
+         if isinstance(entry, list) and tuple(entry) == manifest.get(rel)}
+        if isinstance(spare_files, dict) else set()
+    )
     files = dict(manifest)
     files[MANIFEST] = (digest_bytes(b""), 0)  # placeholder, replaced below
     lazy = _LazyFiles(cache, {**shared, MANIFEST: _manifest_bytes(manifest, digest)}, files)
-    write_site(out, lazy, reuse=reuse)
+    write_site(out, lazy, reuse=reuse, spare_holds=holds)
     return True
 
 

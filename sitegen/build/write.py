@@ -8,13 +8,13 @@ output folders from a user's folder, which is never deleted.
 
 from __future__ import annotations
 
-__all__ = ["MARKER", "OutputRefused", "check_output_dir", "write_site"]
+__all__ = ["MARKER", "OutputRefused", "check_output_dir", "spare_dir", "write_site"]
 
 import ctypes
 import ctypes.util
 import os
 import shutil
-from collections.abc import Mapping
+from collections.abc import Collection, Mapping
 from pathlib import Path
 
 #: Written into every output folder; its presence means "a previous build
@@ -99,8 +99,28 @@ def _hold(path: str | Path) -> None:
         time.sleep(float(delay))
 
 
+#: Inside a spare folder while it is being turned into the next site: a
+#: spare holding it was left half-changed (a killed build) and is discarded.
+_DIRTY = ".sitegen-staging"
+
+
+def spare_dir(out: Path) -> Path:
+    """The folder beside ``out`` that holds the site before the current one
+    (see :func:`write_site`)."""
+    out = out.resolve()
+    return out.parent / f".{out.name}.spare"
+
+
+def _usable_spare(spare: Path) -> bool:
+    """A spare written by us (marker) and not left half-changed."""
+    return (spare / MARKER).is_file() and not os.path.lexists(spare / _DIRTY)
+
+
 def write_site(
-    out: Path, files: Mapping[str, bytes], reuse: Mapping[str, str | Path] | None = None
+    out: Path,
+    files: Mapping[str, bytes],
+    reuse: Mapping[str, str | Path] | None = None,
+    spare_holds: Collection[str] | None = None,
 ) -> None:
     """Stage ``files`` beside ``out`` and swap the staged folder in.
 
@@ -114,22 +134,60 @@ def write_site(
             folder instead of written (the previous site is never changed
             in place, so sharing its inodes is safe). Falls back to
             writing when the link fails.
+        spare_holds: when given, the site is staged in the spare folder
+            (:func:`spare_dir`: the site before the current one, kept by
+            the last build) and these paths are the files the spare already
+            holds with exactly the new bytes; only the others are removed
+            or written. After the swap the spare holds the site that was
+            current, for the next build. Without it (or without a usable
+            spare) the site is staged from nothing and the previous site
+            deleted.
+
+    A spare is marked while it is changed, so one that a killed build left
+    half-changed is never trusted again; the published folder is only ever
+    replaced by a rename.
     """
     out = out.resolve()
     parent = out.parent
     parent.mkdir(parents=True, exist_ok=True)
-    staging = parent / f".{out.name}.staging-{os.getpid()}"
+    spare = spare_dir(out)
     old = parent / f".{out.name}.old-{os.getpid()}"
-    for leftover in (staging, old):
-        if leftover.exists():
-            shutil.rmtree(leftover)
-    staging.mkdir()
+    if old.exists():
+        shutil.rmtree(old)
+    staging = parent / f".{out.name}.staging-{os.getpid()}"
+    keep: Collection[str] = ()
+    if spare_holds is not None:
+        if not os.path.lexists(spare):
+            staging = spare
+        elif (
+            not os.path.islink(spare)
+            and spare.is_dir()
+            and ((spare / MARKER).is_file() or not any(spare.iterdir()))
+        ):
+            staging = spare
+            if _usable_spare(spare):
+                keep = spare_holds
+            else:
+                shutil.rmtree(spare)  # ours, but half-changed (or empty)
+        else:
+            spare_holds = None  # not written by us: leave it alone
+    if staging != spare and staging.exists():
+        shutil.rmtree(staging)
     try:
-        written: list[Path] = []
-        reuse = reuse or {}
+        written: list[str] = []
         root = os.fspath(staging)
+        if keep:
+            _write_file(staging / _DIRTY, b"")
+            _fsync_path(root)
+            _prune(root, set(files), set(keep))
+        else:
+            staging.mkdir()
+            _write_file(staging / _DIRTY, b"")
+        reuse = reuse or {}
         made: set[str] = {root}
         for rel in sorted(files):
+            if rel in keep:
+                continue
             target = _target(root, rel)
             _hold(target)
             folder = os.path.dirname(target)
@@ -144,24 +202,32 @@ def write_site(
                     pass
             with open(target, "wb") as fh:
                 fh.write(files[rel])
-            written.append(Path(target))
-        _write_file(staging / MARKER, _MARKER_TEXT)
-        written.append(staging / MARKER)
-        if (out / ".gitkeep").exists():
-            _write_file(staging / ".gitkeep", b"")
-            written.append(staging / ".gitkeep")
+            written.append(target)
+        if not (staging / MARKER).is_file():
+            _write_file(staging / MARKER, _MARKER_TEXT)
+            written.append(os.fspath(staging / MARKER))
+        gitkeep = staging / ".gitkeep"
+        if (out / ".gitkeep").exists() and not gitkeep.exists():
+            _write_file(gitkeep, b"")
+            written.append(os.fspath(gitkeep))
+        elif not (out / ".gitkeep").exists() and gitkeep.exists():
+            gitkeep.unlink()
         for d in written:
             # fsync so that a crash after the swap cannot expose empty files
-            # (hard-linked files are the previous site's, already on disk)
-            with open(d, "rb") as fh:
-                os.fsync(fh.fileno())
+            # (hard-linked and kept files are already on disk)
+            _fsync_path(d)
+        os.unlink(staging / _DIRTY)
+        _fsync_path(root)
         if out.exists():
             if _exchange(staging, out):
                 # staging now holds the previous site
-                os.replace(staging, old)
+                if staging != spare:
+                    os.replace(staging, old)
             else:
                 os.replace(out, old)
                 os.replace(staging, out)
+                if spare_holds is not None:
+                    os.replace(old, spare)
         else:
             os.replace(staging, out)
     except BaseException:
@@ -172,3 +238,33 @@ def write_site(
         raise
     if old.exists():
         shutil.rmtree(old, ignore_errors=True)
+    if spare_holds is not None and spare.is_dir() and not (spare / MARKER).is_file():
+        # the folder that was current held no site yet (at most .gitkeep)
+        shutil.rmtree(spare, ignore_errors=True)
+
+
+def _prune(root: str, wanted: set[str], keep: set[str]) -> None:
+    """Delete every file under ``root`` that is not both wanted and kept
+    (the marker and the staging mark stay), then the folders left empty."""
+    for folder, dirs, names in os.walk(root, topdown=False):
+        rel_dir = os.path.relpath(folder, root).replace(os.sep, "/")
+        for name in names:
+            rel = name if rel_dir == "." else f"{rel_dir}/{name}"
+            if rel in (MARKER, _DIRTY):
+                continue
+            if rel not in keep or rel not in wanted:
+                os.unlink(os.path.join(folder, name))
+        for d in dirs:
+            path = os.path.join(folder, d)
+            if os.path.islink(path):
+                os.unlink(path)
+            elif not os.listdir(path):
+                os.rmdir(path)
+
+
+def _fsync_path(path: str) -> None:
+    fd = os.open(path, os.O_RDONLY)
+    try:
+        os.fsync(fd)
+    finally:
+        os.close(fd)

@@ -40,7 +40,7 @@ def test_killed_while_writing_leaves_the_previous_site(site: Path) -> None:
         deadline = time.monotonic() + 60
         staged: list[Path] = []
         while time.monotonic() < deadline and proc.poll() is None:
-            staged = [p for p in site.glob(".out.staging-*") if any(p.rglob("*.html"))]
+            staged = [p for p in site.glob(".out.s*") if any(p.rglob("*.html"))]
             if staged:
                 break
             time.sleep(0.02)
@@ -58,6 +58,68 @@ def test_killed_while_writing_leaves_the_previous_site(site: Path) -> None:
                    env={"SITEGEN_CACHE": str(site / "cache")})
     assert done.returncode == 0, done.stderr
     assert "Wear gloves" in (site / "out/methods/copper-iodometric/index.html").read_text("utf-8")
+
+
+def test_a_spare_left_half_changed_by_a_kill_is_never_trusted(site: Path,
+                                                               tmp_path: Path) -> None:
+    # Two builds leave the site before the current one in the spare folder;
+    # a third build, which stages in that spare, is killed half-way. The
+    # published site must be untouched, and the next build must publish
+    # exactly what a build from nothing publishes.
+    env = {"SITEGEN_CACHE": str(site / "cache")}
+    rec = site / "methods/records/copper-iodometric.yaml"
+    rec.write_text(rec.read_text("utf-8").replace("\nprocedure: |\n",
+                                                  "\nprocedure: |\n  0. Wear gloves.\n"), "utf-8")
+    assert run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site,
+                   env=env).returncode == 0
+    spare = site / ".out.spare"
+    assert (spare / ".sitegen-output").is_file()
+    before = tree_hashes(site / "out")
+    base = site / "theme/templates/base.html"
+    base.write_text(base.read_text("utf-8") + "<!-- v2 -->\n", "utf-8")
+    proc = _start_build(site, {**env, "SITEGEN_TEST_WRITE_DELAY": "0.05"})
+    try:
+        deadline = time.monotonic() + 60
+        while time.monotonic() < deadline and proc.poll() is None:
+            if (spare / ".sitegen-staging").exists():
+                break
+            time.sleep(0.02)
+        assert (spare / ".sitegen-staging").exists(), "the build never started writing"
+        time.sleep(0.3)
+        assert proc.poll() is None, "the build finished before it could be killed"
+        proc.send_signal(signal.SIGKILL)
+        proc.wait(timeout=10)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+    assert tree_hashes(site / "out") == before
+    done = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site, env=env)
+    assert done.returncode == 0, done.stderr
+    fresh = tmp_path / "fresh"
+    copy_demo(fresh)
+    for sub in ("methods", "theme"):
+        import shutil
+
+        shutil.rmtree(fresh / sub)
+        shutil.copytree(site / sub, fresh / sub)
+    cold = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
+                   env={"SITEGEN_CACHE": str(fresh / "cache")})
+    assert cold.returncode == 0, cold.stderr
+    assert contents(site / "out") == contents(fresh / "out")
+    assert not (site / "out" / ".sitegen-staging").exists()
+    # and a spare in good order is reused: only what changed is rewritten,
+    # and the result is still what a build from nothing gives
+    for folder in (site, fresh):
+        r = folder / "methods/records/copper-iodometric.yaml"
+        r.write_text(r.read_text("utf-8").replace("Wear gloves.", "Wear goggles."), "utf-8")
+    kept = {p.relative_to(spare): p.stat().st_ino for p in spare.rglob("*.csv")}
+    assert kept and (spare / ".sitegen-output").is_file()
+    again = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site, env=env)
+    assert again.returncode == 0, again.stderr
+    assert run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
+                   env={"SITEGEN_CACHE": str(fresh / "cache")}).returncode == 0
+    assert contents(site / "out") == contents(fresh / "out")
+    assert {p: (site / "out" / p).stat().st_ino for p in kept} == kept  # files kept, not copied
 
 
 def test_killed_early_leaves_the_previous_site(site: Path) -> None:
