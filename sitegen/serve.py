@@ -53,6 +53,9 @@ class _State:
     version: int = 0
     error_page: bytes | None = None
     lock: threading.Lock = field(default_factory=threading.Lock)
+    #: the build cache's entries kept as objects between rebuilds (used by
+    #: the build loop only)
+    memo: dict[tuple[str, str], Any] = field(default_factory=dict)
 
     def publish(self, error_page: bytes | None) -> None:
         with self.lock:
@@ -184,7 +187,7 @@ def _build_once(args: Any, state: _State, err: TextIO) -> bool:
             Path(args.source), Path(args.out),
             settings=Settings(today=build_date(), strict=bool(getattr(args, "strict", False))),
             theme=getattr(args, "theme", None), jobs=getattr(args, "jobs", None), progress=err,
-            cache_dir=getattr(args, "cache_dir", None),
+            cache_dir=getattr(args, "cache_dir", None), memo=state.memo,
         )
     except OutputRefused as exc:
         print(f"sitegen serve: error: {exc}", file=err)

@@ -154,12 +154,20 @@ class Cache:
 
     Args:
         root: the folder (created on first write).
+        memo: a dict kept by a long-lived process (``sitegen serve``) in
+            which entries are also kept as objects, so that the next build
+            in that process does not read and unpickle them again. Entries
+            are addressed by content, so a kept one is never stale; values
+            must not be changed by their users.
     """
 
-    def __init__(self, root: Path) -> None:
+    def __init__(self, root: Path, memo: dict[tuple[str, str], Any] | None = None) -> None:
         self.root = Path(root)
         # plain strings: a build asks for thousands of entries and blobs
         self._base = os.fspath(self.root)
+        self.memo = memo
+        #: (kind, key) of every entry asked for or stored through this object
+        self.used: set[tuple[str, str]] = set()
 
     def __repr__(self) -> str:
         return f"Cache({str(self.root)!r})"
@@ -171,21 +179,44 @@ class Cache:
 
     def get(self, kind: str, key: str) -> Any | None:
         """The value stored under ``kind``/``key``, or None."""
+        if self.memo is not None:
+            self.used.add((kind, key))
+            if (kind, key) in self.memo:
+                return self.memo[(kind, key)]
         try:
             with open(self._entry(kind, key), "rb") as fh:
                 data = fh.read()
         except OSError:
             return None
         try:
-            return pickle.loads(data)
+            value = pickle.loads(data)
         except Exception:
             # A damaged or incompatible entry is a miss; it is overwritten
             # by the next put.
             return None
+        if self.memo is not None:
+            self.memo[(kind, key)] = value
+        return value
 
     def put(self, kind: str, key: str, value: Any) -> None:
         """Store ``value`` under ``kind``/``key`` atomically."""
         _atomic_write(self._entry(kind, key), dumps(value))
+        self.remember(kind, key, value)
+
+    def remember(self, kind: str, key: str, value: Any) -> None:
+        """Keep ``value`` in the memo only (it was stored by another
+        process, a worker)."""
+        if self.memo is not None:
+            self.used.add((kind, key))
+            self.memo[(kind, key)] = value
+
+    def forget_unused(self) -> None:
+        """Drop from the memo every entry this object did not touch (the
+        memo then holds what the last build used, not every build's)."""
+        # (a build answered from its snapshot used nothing else: keep all)
+        if self.memo is not None and any(kind != "build" for kind, _ in self.used):
+            for k in [k for k in self.memo if k not in self.used]:
+                del self.memo[k]
 
     # -- content-addressed blobs -----------------------------------------
 

@@ -708,6 +708,7 @@ def build(
     progress: TextIO | None = None,
     cache_dir: Path | None = None,
     enabled: Iterable[str] | None = None,
+    memo: dict[tuple[str, str], Any] | None = None,
 ) -> BuildReport:
     """Build the site from ``source`` into ``out``, reusing every result
     whose inputs have not changed.
@@ -727,6 +728,8 @@ def build(
         cache_dir: the cache folder (default: ``$SITEGEN_CACHE``, else
             ``.sitegen-cache/`` beside the source folder).
         enabled: rule ids to run (default: all).
+        memo: kept between builds by a long-lived caller (see
+            :class:`sitegen.build.cache.Cache`).
 
     Returns:
         The report; ``written`` is True when the output holds the new site.
@@ -736,7 +739,6 @@ def build(
             would be inside it.
         FileNotFoundError: ``source`` has no site.yaml.
     """
-    from ..clock import build_date
     from .write import OutputRefused
 
     settings = settings or Settings()
@@ -749,7 +751,19 @@ def build(
     cache_root = Path(cache_dir or env_cache or default_cache_dir(source, out)).resolve()
     if cache_root.is_relative_to(out.resolve()):
         raise OutputRefused(f"cache folder {cache_root} is inside the output folder {out}")
-    cache = Cache(cache_root)
+    cache = Cache(cache_root, memo)
+    try:
+        return _build(source, out, settings, keep_going, theme_dir, jobs, progress,
+                      enabled, cache, cache_root)
+    finally:
+        cache.forget_unused()
+
+
+def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_dir: Path,
+           jobs: int | None, progress: TextIO | None, enabled: Iterable[str] | None,
+           cache: Cache, cache_root: Path) -> BuildReport:
+    from ..clock import build_date
+
     cwd = Path.cwd().resolve()
     version = _version()
     code = code_digest(version)
@@ -891,7 +905,10 @@ def _build_loaded(
             analyses[mid] = hit
         else:
             todo.append((mid, key))
-    analyses.update(runner.map("analyse", _analyse_many, todo))
+    new = runner.map("analyse", _analyse_many, todo)
+    for mid, key in todo:
+        cache.remember("analysis", key, new[mid])
+    analyses.update(new)
     analyses = dict(sorted(analyses.items()))
     times["analyse"] = time.perf_counter() - t0
 
@@ -962,7 +979,10 @@ def _build_loaded(
             rendered[mid] = hit
         else:
             render_todo.append((mid, key, analysis, own))
-    rendered.update(runner.map("render", _render_many, render_todo, options))
+    new_pages = runner.map("render", _render_many, render_todo, options)
+    for mid, key, *_ in render_todo:
+        cache.remember("render", key, new_pages[mid])
+    rendered.update(new_pages)
     rendered = dict(sorted(rendered.items()))
     built = sorted(m for m, *_ in render_todo)
     shared = render_shared(collection, analyses, findings, options,

@@ -245,3 +245,28 @@ def test_a_prose_edit_is_rebuilt_without_the_plotting_library(site: Path) -> Non
     assert "sitegen.analyse" in imported  # the record was analysed again
     assert not any(m == "matplotlib" or m.startswith("matplotlib.") for m in imported)
     assert contents(site / "out") == _cold_contents(site)
+
+
+def test_a_memo_kept_between_builds_gives_the_same_site(site: Path) -> None:
+    # sitegen serve keeps the cache's entries as objects between rebuilds;
+    # the site must be what a cold build gives, and the memo must hold
+    # only what the last build used.
+    memo: dict = {}
+    _edit(site / "methods/records/copper-iodometric.yaml", "\nprocedure: |\n",
+          "\nprocedure: |\n  0. Wear gloves.\n")
+    assert do_build(memo=memo).written
+    kinds = {k for k, _ in memo}
+    assert {"loaded", "analysis", "render"} <= kinds
+    first = set(memo)
+    _edit(site / "methods/records/copper-iodometric.yaml", "\nprocedure: |\n",
+          "\nprocedure: |\n  0. Rinse the burette.\n")
+    report = do_build(memo=memo)
+    assert report.rebuilt == ["copper-iodometric"]
+    assert contents(site / "out") == _cold_contents(site)
+    gone = first - set(memo)
+    assert gone and all(kind in {"loaded", "analysis", "render", "build"} for kind, _ in gone)
+    assert len(memo) <= len(first) + 1
+    # a build answered from its snapshot keeps the memo whole
+    size = len(memo)
+    assert do_build(memo=memo).methods_built == 0
+    assert len(memo) >= size
