@@ -198,6 +198,16 @@ class Cache:
             self.memo[(kind, key)] = value
         return value
 
+    def has(self, kind: str, key: str) -> bool:
+        """Whether an entry is stored (not read: :meth:`get` may still find
+        it damaged)."""
+        if self.memo is not None and (kind, key) in self.memo:
+            self.used.add((kind, key))
+            return True
+        if self.memo is not None:
+            self.used.add((kind, key))
+        return os.path.isfile(self._entry(kind, key))
+
     def put(self, kind: str, key: str, value: Any) -> None:
         """Store ``value`` under ``kind``/``key`` atomically."""
         _atomic_write(self._entry(kind, key), dumps(value))

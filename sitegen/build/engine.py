@@ -35,6 +35,7 @@ from __future__ import annotations
 
 __all__ = ["MANIFEST", "build"]
 
+import contextlib
 import dataclasses
 import json
 import math
@@ -202,8 +203,133 @@ def _strings(data: Any) -> Iterator[str]:
 
 
 def _named(loaded: Any) -> set[str]:
+    if isinstance(loaded, _LazyLoaded):
+        return set(loaded.card.named)
     data = getattr(getattr(loaded, "parsed", None), "data", None)
     return {s.strip() for s in _strings(data) if _ID_LIKE.match(s.strip())}
+
+
+#: Top-level fields of a method record that only its own files show (the
+#: shared pages and the collection-wide rules never read them): an edit
+#: there leaves a method's "facts" digest unchanged.
+_OWN_ONLY = frozenset({"procedure"})
+
+
+@dataclass(frozen=True)
+class _Card:
+    """What a build needs of a method record whose text it has seen
+    before, kept so that the record is not read back from the cache: the
+    id it declares, the strings in it that may name other records, the
+    loader's findings and a digest of every field but :data:`_OWN_ONLY`."""
+
+    rid: str
+    named: frozenset[str]
+    findings: tuple[Finding, ...]
+    facts: str
+
+
+def _card_of(loaded: Any, findings: Sequence[Finding]) -> _Card:
+    data = loaded.parsed.data
+    kept = {k: v for k, v in data.items() if k not in _OWN_ONLY} if isinstance(data, dict) else data
+    return _Card(
+        rid=loaded.record.id,
+        named=frozenset(_named(loaded)),
+        findings=tuple(findings),
+        facts=key_of(json.dumps(kept, sort_keys=True, default=repr)),
+    )
+
+
+class _LazyLoaded:
+    """A method record as the collection holds it when its text is
+    unchanged: the source and the card at once, the validated record (read
+    back from the cache, or validated again if the cache lost it) only when
+    something asks for it."""
+
+    __slots__ = ("_cache", "_full", "_key", "card", "source")
+
+    def __init__(self, cache: Cache, key: str, source: Any, card: _Card) -> None:
+        self._cache = cache
+        self._key = key
+        self.source = source
+        self.card = card
+        self._full: Any = None
+
+    @property
+    def record_id(self) -> str:
+        return self.card.rid
+
+    def full(self) -> Any:
+        if self._full is None:
+            hit = _loaded_hit(self._cache, self._key, self.source)
+            if hit is None:
+                from ..load.records import load_text
+                from ..model import MethodRecord
+
+                hit = load_text(MethodRecord, self.source)
+                self._cache.put("loaded", self._key, hit)
+            if hit[0] is None:  # pragma: no cover - the card says it loaded
+                raise RuntimeError(f"{self.source.path} no longer loads")
+            self._full = hit[0]
+        return self._full
+
+    def __getattr__(self, name: str) -> Any:
+        # record, parsed, span(): everything else is the real Loaded's
+        return getattr(self.full(), name)
+
+    def __reduce__(self) -> Any:
+        return (_same, (self.full(),))
+
+
+def _same(x: Any) -> Any:
+    return x
+
+
+class _Analyses(Mapping[str, Any]):
+    """Method id -> analysis, read back from the cache only when asked for
+    (the check and render stages need few of them when little changed).
+    Iterates in id order; ``pop`` forgets a method."""
+
+    def __init__(self, cache: Cache, recompute: Any) -> None:
+        self._cache = cache
+        self._recompute = recompute
+        self._keys: dict[str, str] = {}
+        self._values: dict[str, Any] = {}
+
+    def add_cached(self, mid: str, key: str) -> None:
+        self._keys[mid] = key
+
+    def add(self, mid: str, value: Any) -> None:
+        self._keys[mid] = ""
+        self._values[mid] = value
+
+    def pop(self, mid: str, default: Any = None) -> Any:
+        if mid not in self._keys:
+            return default
+        value = self[mid]
+        del self._keys[mid]
+        self._values.pop(mid, None)
+        return value
+
+    def __getitem__(self, mid: str) -> Any:
+        if mid in self._values:
+            return self._values[mid]
+        key = self._keys[mid]
+        value = self._cache.get("analysis", key)
+        if value is None:
+            # the entry was there when the stage looked but cannot be read
+            # back now (damaged or removed): compute (and store) it again
+            value = self._recompute(mid, key)
+        self._values[mid] = value
+        return value
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(sorted(self._keys))
+
+    def __len__(self) -> int:
+        return len(self._keys)
+
+    def __contains__(self, mid: object) -> bool:
+        return mid in self._keys
 
 
 class _Deps:
@@ -272,6 +398,9 @@ _STATE: list[_WorkerState] = []  # one entry inside a worker process
 
 
 def _init_worker(state: _WorkerState) -> None:
+    import gc
+
+    gc.enable()  # forked from a main process that runs without it
     _STATE[:] = [state]
 
 
@@ -426,10 +555,11 @@ class _Runner:
         results: dict[str, Any] = {}
         if self.jobs == 1 or total < _POOL_MIN:
             step = max(1, min(16, total))
-            for i in range(0, total, step):
-                for mid, value in func(self.state, items[i : i + step], *extra):
-                    results[mid] = value
-                self.progress.update(stage, len(results), total)
+            with _collector(True):
+                for i in range(0, total, step):
+                    for mid, value in func(self.state, items[i : i + step], *extra):
+                        results[mid] = value
+                    self.progress.update(stage, len(results), total)
             return dict(sorted(results.items()))
         # Several chunks per worker balance the load; a chunk of a few
         # methods keeps the pickling of arguments and results small.
@@ -497,9 +627,16 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
     results: dict[str, Any] = {}
     keys: list[str] = []
     misses: list[tuple[str, Any, str]] = []
+    cards: dict[str, str] = {}  # loaded key -> card key, for method records
     for folder, _path, src in items:
         key = _loaded_key(code, lc.KINDS[folder], src)
         keys.append(key)
+        if folder == "records":
+            cards[key] = key_of("card", key)
+            card = cache.get("card", cards[key])
+            if isinstance(card, _Card):
+                results[key] = (_LazyLoaded(cache, key, src, card), list(card.findings))
+                continue
         hit = _loaded_hit(cache, key, src)
         if hit is not None:
             results[key] = hit
@@ -512,7 +649,8 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
         methods = mp.get_all_start_methods()
         ctx = mp.get_context("fork" if "fork" in methods else None)
         size = max(1, min(64, math.ceil(len(misses) / (jobs * 4))))
-        with ProcessPoolExecutor(max_workers=jobs, mp_context=ctx) as pool:
+        with ProcessPoolExecutor(max_workers=jobs, mp_context=ctx,
+                                 initializer=_enable_collector) as pool:
             futures = [
                 pool.submit(_load_many, misses[i : i + size], cache.root)
                 for i in range(0, len(misses), size)
@@ -520,11 +658,22 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
             for fut in futures:
                 results.update(loads(fut.result()))
     else:
-        for folder, src, key in misses:
-            results[key] = load_text(lc.KINDS[folder], src)
-            cache.put("loaded", key, results[key])
+        with _collector(True):
+            for folder, src, key in misses:
+                results[key] = load_text(lc.KINDS[folder], src)
+                cache.put("loaded", key, results[key])
+    for key, card_key in cards.items():
+        loaded, findings = results[key]
+        if loaded is not None and not isinstance(loaded, _LazyLoaded):
+            cache.put("card", card_key, _card_of(loaded, findings))
     lc.add_records(col, items, [results[k] for k in keys])
     return col
+
+
+def _enable_collector() -> None:
+    import gc
+
+    gc.enable()
 
 
 def _loaded_key(code: str, model: Any, src: Any) -> str:
@@ -753,10 +902,38 @@ def build(
         raise OutputRefused(f"cache folder {cache_root} is inside the output folder {out}")
     cache = Cache(cache_root, memo)
     try:
-        return _build(source, out, settings, keep_going, theme_dir, jobs, progress,
-                      enabled, cache, cache_root)
+        with _collector(False):
+            return _build(source, out, settings, keep_going, theme_dir, jobs, progress,
+                          enabled, cache, cache_root)
     finally:
         cache.forget_unused()
+
+
+@contextlib.contextmanager
+def _collector(on: bool) -> Iterator[None]:
+    """Run the block with Python's cyclic garbage collector on or off.
+
+    The build's main process is off: it reads thousands of cached objects
+    and keeps nearly all of them to the end, and the collector, woken by
+    every few hundred allocations, walked that growing heap again and
+    again (about half of an incremental build's time). Work that makes
+    garbage in bulk (a method's chemistry and pages, in this process or a
+    worker) runs with it on.
+    """
+    import gc
+
+    was = gc.isenabled()
+    if on:
+        gc.enable()
+    else:
+        gc.disable()
+    try:
+        yield
+    finally:
+        if was:
+            gc.enable()
+        else:
+            gc.disable()
 
 
 def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_dir: Path,
@@ -863,6 +1040,118 @@ def _remember(cache: Cache, build_key: str, report: BuildReport, collection: Any
     cache.put("build", build_key, snap)
 
 
+@dataclass
+class _Checked:
+    """The check stage's outcome: every finding, and per method the
+    findings its analysis made (for the method's own list)."""
+
+    findings: list[Finding]
+    analysis_findings: dict[str, tuple[Finding, ...]]
+
+
+def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Settings,
+                 enabled: tuple[str, ...] | None, cache: Cache, code: str,
+                 analysis_keys: Mapping[str, str],
+                 closures: Mapping[str, tuple[set[str], set[str]]]) -> _Checked:
+    """:func:`sitegen.build.run.run_checks`, with each method's rule
+    findings kept by everything they can depend on (the analysis key
+    covers the record and the records it names; the ids it names and
+    whether they exist; the settings and the rule set), and the
+    collection-wide rules' findings kept by every method's facts digest,
+    every analysis' digest and every reagent and indicator record."""
+    from dataclasses import replace
+
+    from ..check import rules as _rules  # noqa: F401  (registers the rules)
+    from ..check.registry import RULES, Context
+    from ..errors import sort_findings
+
+    if collection.site is not None:
+        settings = replace(settings, burette_band=tuple(collection.site.record.burette_band))
+    ids = list(RULES) if enabled is None else list(enabled)
+    unknown = [i for i in ids if i not in RULES]
+    if unknown:
+        raise KeyError(f"unknown rule id(s) {', '.join(unknown)}; known: {', '.join(RULES)}")
+    scoped: dict[str, list[Any]] = {}
+    for rid in ids:
+        scoped.setdefault(RULES[rid].scope, []).append(RULES[rid])
+    ctx = Context(collection=collection, analyses=analyses, settings=settings)
+    site = collection.site.source if collection.site is not None else None
+    sr = collection.safety_rules_source
+    rules_key = key_of(
+        "rules", code, repr(settings), tuple(ids),
+        (site.path, site.digest) if site is not None else None,
+        (sr.path, sr.digest) if sr is not None else None,
+    )
+    findings: list[Finding] = list(collection.findings)
+    by_method: dict[str, tuple[Finding, ...]] = {}
+    digests: dict[str, str] = {}
+    for mid in sorted(collection.methods):
+        names, methods = closures[mid]
+        ck = key_of(
+            "checks", rules_key, analysis_keys[mid],
+            [(m, analysis_keys.get(m)) for m in sorted(methods)],
+            [(n, n in collection.methods) for n in sorted(names)],
+        )
+        hit = cache.get("checks", ck)
+        if not (isinstance(hit, tuple) and len(hit) == 3):
+            loaded, an = collection.methods[mid], analyses.get(mid)
+            found: list[Finding] = []
+            for info in scoped.get("method", []):
+                found.extend(info.func(ctx, loaded, an))
+            hit = (tuple(found), tuple(an.findings) if an is not None else (),
+                   key_of(dumps(an)))
+            cache.put("checks", ck, hit)
+        findings.extend(hit[0])
+        by_method[mid], digests[mid] = hit[1], hit[2]
+    for scope, table in (("reagent", collection.reagents), ("indicator", collection.indicators)):
+        for info in scoped.get(scope, []):
+            for loaded in table.values():
+                findings.extend(info.func(ctx, loaded))
+    if scoped.get("collection"):
+        findings.extend(_collection_rules(ctx, scoped["collection"], cache, rules_key, digests))
+    if settings.strict:
+        findings = [
+            Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f
+            for f in findings
+        ]
+    return _Checked(sort_findings(set(findings)), by_method)
+
+
+def _collection_rules(ctx: Any, rules: Sequence[Any], cache: Cache, rules_key: str,
+                      analysis_digests: Mapping[str, str]) -> list[Finding]:
+    """The collection-wide rules' findings, computed again only when a
+    method's facts, an analysis, or a reagent or indicator record changed,
+    or a file the kept findings point into did (their positions)."""
+    col = ctx.collection
+    facts = [(mid, _facts(lo)) for mid, lo in sorted(col.methods.items())]
+    shared = [
+        (lo.source.path, lo.source.digest)
+        for table in (col.reagents, col.indicators) for lo in table.values()
+    ]
+    key = key_of("collection-checks", rules_key, facts, sorted(analysis_digests.items()),
+                 sorted(shared))
+    hit = cache.get("collection-checks", key)
+    if isinstance(hit, tuple) and len(hit) == 2:
+        found, pointed = hit
+        if all(
+            (src := col.sources.get(path)) is not None and src.digest == digest
+            for path, digest in pointed
+        ):
+            return list(found)
+    found = [f for info in rules for f in info.func(ctx)]
+    pointed = sorted({(f.span.path, col.sources[f.span.path].digest)
+                      for f in found if f.span.path in col.sources})
+    if all(f.span.path in col.sources for f in found):
+        cache.put("collection-checks", key, (tuple(found), tuple(pointed)))
+    return found
+
+
+def _facts(loaded: Any) -> str:
+    if isinstance(loaded, _LazyLoaded):
+        return loaded.card.facts
+    return _card_of(loaded, ()).facts
+
+
 def _build_loaded(
     collection: Any,
     out: Path,
@@ -880,7 +1169,7 @@ def _build_loaded(
 ) -> tuple[BuildReport, dict[str, tuple[str, int]], str]:
     """Stages 3-7 over a loaded collection; returns the report and the
     published file set (empty when nothing was published)."""
-    from .run import run_checks
+    from ..errors import sort_findings
 
     # -- 3. analyse --------------------------------------------------------------
     t0 = time.perf_counter()
@@ -890,7 +1179,7 @@ def _build_loaded(
     safety_key = (sr.path, sr.digest) if sr is not None else None
     analysis_keys: dict[str, str] = {}
     closures: dict[str, tuple[set[str], set[str]]] = {}
-    analyses: dict[str, Any] = {}
+    analyses = _Analyses(cache, lambda mid, key: _analyse_many(runner.state, [(mid, key)])[0][1])
     todo: list[tuple[str, str]] = []
     for mid, loaded in sorted(collection.methods.items()):
         names, methods = deps.closure(mid)
@@ -900,21 +1189,21 @@ def _build_loaded(
             safety_key,
         )
         analysis_keys[mid] = key
-        hit = cache.get("analysis", key)
-        if hit is not None:
-            analyses[mid] = hit
+        if cache.has("analysis", key):
+            analyses.add_cached(mid, key)
         else:
             todo.append((mid, key))
     new = runner.map("analyse", _analyse_many, todo)
     for mid, key in todo:
         cache.remember("analysis", key, new[mid])
-    analyses.update(new)
-    analyses = dict(sorted(analyses.items()))
+        analyses.add(mid, new[mid])
     times["analyse"] = time.perf_counter() - t0
 
     # -- 4. check ----------------------------------------------------------------
     t0 = time.perf_counter()
-    findings = run_checks(collection, analyses, settings, enabled)
+    checked = _check_stage(collection, analyses, settings, enabled, cache, code, analysis_keys,
+                           closures)
+    findings = checked.findings
     times["check"] = time.perf_counter() - t0
     result = CheckResult(collection, analyses, findings)
     report = BuildReport(check=result, out=out, stage_seconds=times)
@@ -964,8 +1253,9 @@ def _build_loaded(
     own_findings: dict[str, list[Finding]] = {}
     render_todo: list[tuple[str, str, Any, list[Finding]]] = []
     for mid, loaded in published.items():
-        analysis = analyses.get(mid)
-        own = pages.method_findings(findings_at.get(loaded.source.path, []), loaded, analysis)
+        # (pages.method_findings, without reading the analysis back)
+        own = sort_findings({*findings_at.get(loaded.source.path, []),
+                             *checked.analysis_findings.get(mid, ())})
         names, methods = closures[mid]
         key = key_of(
             "render", globals_key, analysis_keys[mid], repr(own),
@@ -978,7 +1268,7 @@ def _build_loaded(
         if isinstance(hit, _Rendered) and all(cache.has_blob(s) for s, _ in hit.files.values()):
             rendered[mid] = hit
         else:
-            render_todo.append((mid, key, analysis, own))
+            render_todo.append((mid, key, analyses.get(mid), own))
     new_pages = runner.map("render", _render_many, render_todo, options)
     for mid, key, *_ in render_todo:
         cache.remember("render", key, new_pages[mid])

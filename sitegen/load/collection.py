@@ -214,7 +214,7 @@ def add_records(
         if loaded is None:
             col.unloadable.setdefault(folder, set()).add(path.stem)
             continue
-        rid = loaded.record.id
+        rid = getattr(loaded, "record_id", None) or loaded.record.id
         if rid != path.stem:
             col.findings.append(
                 Finding(
