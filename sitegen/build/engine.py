@@ -430,9 +430,9 @@ class _Rendered:
 
     files: dict[str, tuple[str, int]]
     links: dict[str, PageLinks]
-    #: the procedure's plain words for the search index (kept here so that
-    #: the shared pages need no markdown pass over unchanged methods)
-    search_text: str = ""
+    #: the method's search-index document (None: not indexed), kept so that
+    #: the index is assembled without reading unchanged records
+    search_doc: dict[str, Any] | None = None
 
 
 def _render_many(
@@ -482,7 +482,7 @@ def _render_entry(cache: Cache, code: str, collection: Any, mid: str, key: str,
     """Render one method's files, store them in the cache (``force``:
     rewrite blobs already there) and keep their entry under ``key``."""
     from ..render.links import page_links
-    from ..render.search import procedure_words
+    from ..render.search import search_document
     from ..render.site import render_method_files
 
     # (a forced render, which repairs a damaged cache, draws afresh)
@@ -494,7 +494,7 @@ def _render_entry(cache: Cache, code: str, collection: Any, mid: str, key: str,
         meta[rel] = (cache.put_blob(data, force=force), len(data))
         if rel.endswith(".html"):
             links[rel] = page_links(data)
-    entry = _Rendered(meta, links, procedure_words(collection.methods[mid].record))
+    entry = _Rendered(meta, links, search_document(mid, collection.methods[mid], collection))
     cache.put("render", key, entry)
     return entry
 
@@ -693,20 +693,21 @@ def _loaded_hit(cache: Cache, key: str, src: Any) -> Any:
 
 
 def _broken_links(
-    cache: Cache, out: Path, shared: Mapping[str, bytes], rendered: Mapping[str, _Rendered]
+    cache: Cache, out: Path, pages: Mapping[str, bytes], entries: Iterable[_Rendered]
 ) -> list[tuple[str, str, str]]:
-    """Broken links of the new site, checking again only the pages that
-    changed since the last good check into ``out`` (all of them when a
-    file appeared or went, or any page's ids changed: those decide every
-    other page's links)."""
+    """Broken links of the new site (``pages``: files held as bytes;
+    ``entries``: files kept with their link summaries), checking again only
+    the pages that changed since the last good check into ``out`` (all of
+    them when a file appeared or went, or any page's ids changed: those
+    decide every other page's links)."""
     from ..render.links import check_summaries, page_links
 
     summaries: dict[str, PageLinks] = {}
-    names: list[str] = list(shared)
-    for rel, data in shared.items():
+    names: list[str] = list(pages)
+    for rel, data in pages.items():
         if rel.endswith(".html"):
             summaries[rel] = page_links(data)
-    for entry in rendered.values():
+    for entry in entries:
         names.extend(entry.files)
         summaries.update(entry.links)
     names.sort()
@@ -1275,13 +1276,41 @@ def _build_loaded(
     rendered.update(new_pages)
     rendered = dict(sorted(rendered.items()))
     built = sorted(m for m, *_ in render_todo)
-    shared = render_shared(collection, analyses, findings, options,
-                           {mid: entry.search_text for mid, entry in rendered.items()})
+    # The shared pages read every published method's record except its
+    # procedure (the facts digest), the findings and the shared records;
+    # the search index is assembled from the documents kept per method.
+    from ..render.search import search_files
+
+    shared_key = key_of(
+        "shared", globals_key, [(mid, _facts(lo)) for mid, lo in published.items()],
+        repr(findings), sorted(checked.analysis_findings.items()),
+        sorted((lo.source.path, lo.source.digest)
+               for table in (collection.reagents, collection.indicators)
+               for lo in table.values()),
+    )
+
+    def render_shared_entry(force: bool = False) -> _Rendered:
+        from ..render.links import page_links
+
+        files = render_shared(collection, analyses, findings, options, search=False)
+        entry = _Rendered(
+            {rel: (cache.put_blob(data, force=force), len(data)) for rel, data in files.items()},
+            {rel: page_links(data) for rel, data in files.items() if rel.endswith(".html")},
+        )
+        cache.put("shared", shared_key, entry)
+        return entry
+
+    shared_entry = cache.get("shared", shared_key)
+    if not (isinstance(shared_entry, _Rendered)
+            and all(cache.has_blob(sha) for sha, _ in shared_entry.files.values())):
+        shared_entry = render_shared_entry()
+    extra = search_files(collection, published,
+                         [entry.search_doc for entry in rendered.values()])
     times["render"] = time.perf_counter() - t0
 
     # -- 6. links ----------------------------------------------------------------
     t0 = time.perf_counter()
-    broken = _broken_links(cache, out, shared, rendered)
+    broken = _broken_links(cache, out, extra, [shared_entry, *rendered.values()])
     times["links"] = time.perf_counter() - t0
     if broken:
         report.check.findings.extend(
@@ -1297,29 +1326,33 @@ def _build_loaded(
 
     # -- 7. write ------------------------------------------------------------------
     t0 = time.perf_counter()
-    manifest: dict[str, tuple[str, int]] = {}
+    manifest: dict[str, tuple[str, int]] = dict(shared_entry.files)
     for entry in rendered.values():
         manifest.update(entry.files)
-    for rel, data in shared.items():
+    for rel, data in extra.items():
         manifest[rel] = (digest_bytes(data), len(data))
     manifest = dict(sorted(manifest.items()))
     digest = _manifest_digest(manifest)
-    for rel, data in shared.items():
+    for rel, data in extra.items():
         # kept so that a lost output folder is restored without a build
         cache.put_blob(data, manifest[rel][0])
     owner = {rel: mid for mid, entry in rendered.items() for rel in entry.files}
+    owner.update(dict.fromkeys(shared_entry.files, ""))
     repaired: set[str] = set()
     while True:
         try:
-            wrote = _publish(out, cache, shared, manifest, digest)
+            wrote = _publish(out, cache, extra, manifest, digest)
             break
         except _BlobDamaged as exc:
             # Someone damaged the cache (the write is staged, so nothing was
-            # published): render that method again, in this process.
+            # published): render those files again, in this process.
             mid = owner.get(exc.rel)
             if mid is None or mid in repaired:
                 raise
             repaired.add(mid)
+            if mid == "":
+                render_shared_entry(force=True)
+                continue
             _render_entry(cache, code, collection, mid, render_keys[mid], analyses.get(mid),
                           own_findings[mid], options, force=True)
             built = sorted({*built, mid})

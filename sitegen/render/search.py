@@ -10,48 +10,44 @@ a ``<script src>``.
 
 from __future__ import annotations
 
-__all__ = ["procedure_words", "search_documents", "search_files"]
+__all__ = ["procedure_words", "search_document", "search_documents", "search_files"]
 
 import json
-from collections.abc import Mapping
+from collections.abc import Sequence
 from typing import Any
 
 from .text import markdown_text
 
 
-def search_documents(
-    collection: Any, published: dict[str, Any], texts: Mapping[str, str] | None = None
-) -> list[dict[str, Any]]:
-    """The documents, sorted by id; URLs are relative to the site root.
+def search_document(mid: str, loaded: Any, collection: Any) -> dict[str, Any] | None:
+    """One method's document (None for a retired method, which is not
+    indexed); its URL is relative to the site root."""
+    rec = loaded.record
+    if rec.status.value == "retired":
+        return None
+    names, formulas = [], []
+    for use in rec.reagents:
+        r = collection.reagents.get(use.ref)
+        if r is not None:
+            names.append(r.record.name)
+            formulas.append(r.record.formula)
+    return {
+        "id": mid,
+        "url": f"methods/{mid}/index.html",
+        "title": rec.title,
+        "status": rec.status.value,
+        "analyte": rec.scope.analyte,
+        "matrix": rec.scope.matrix,
+        "reagents": " ; ".join(names),
+        "formulas": " ".join(formulas),
+        "text": procedure_words(rec),
+    }
 
-    ``texts`` may hold :func:`procedure_words` of some methods, computed
-    earlier (a build keeps them with each method's cached pages).
-    """
-    docs = []
-    for mid, loaded in sorted(published.items()):
-        rec = loaded.record
-        if rec.status.value == "retired":
-            continue
-        names, formulas = [], []
-        for use in rec.reagents:
-            r = collection.reagents.get(use.ref)
-            if r is not None:
-                names.append(r.record.name)
-                formulas.append(r.record.formula)
-        docs.append(
-            {
-                "id": mid,
-                "url": f"methods/{mid}/index.html",
-                "title": rec.title,
-                "status": rec.status.value,
-                "analyte": rec.scope.analyte,
-                "matrix": rec.scope.matrix,
-                "reagents": " ; ".join(names),
-                "formulas": " ".join(formulas),
-                "text": texts[mid] if texts and mid in texts else procedure_words(rec),
-            }
-        )
-    return docs
+
+def search_documents(collection: Any, published: dict[str, Any]) -> list[dict[str, Any]]:
+    """The documents of the published methods, sorted by id."""
+    docs = (search_document(mid, lo, collection) for mid, lo in sorted(published.items()))
+    return [d for d in docs if d is not None]
 
 
 def procedure_words(record: Any) -> str:
@@ -60,10 +56,18 @@ def procedure_words(record: Any) -> str:
 
 
 def search_files(
-    collection: Any, published: dict[str, Any], texts: Mapping[str, str] | None = None
+    collection: Any, published: dict[str, Any],
+    documents: Sequence[dict[str, Any] | None] | None = None,
 ) -> dict[str, bytes]:
-    """``search-index.json`` and ``search-index.js``."""
-    payload = {"version": 1, "documents": search_documents(collection, published, texts)}
+    """``search-index.json`` and ``search-index.js``. ``documents``: the
+    methods' :func:`search_document` values in id order, where already
+    known (a build keeps each with the method's pages); None entries are
+    left out."""
+    if documents is None:
+        docs = search_documents(collection, published)
+    else:
+        docs = [d for d in documents if d is not None]
+    payload = {"version": 1, "documents": docs}
     text = json.dumps(payload, sort_keys=True, ensure_ascii=False, separators=(",", ":"))
     # "</" would end an inline script; the JS file is loaded by src, but a
     # theme could inline it, so keep it safe either way

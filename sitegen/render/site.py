@@ -107,12 +107,12 @@ def render_shared(
     analyses: Mapping[str, Any],
     findings: Sequence[Finding],
     options: RenderOptions,
-    search_texts: Mapping[str, str] | None = None,
+    search: bool = True,
 ) -> dict[str, bytes]:
     """Every file that is not one method's own: home, archive, reagent and
     indicator pages, glossary, quality and rules pages, search index and
-    the theme's static files. ``search_texts``: method id ->
-    :func:`sitegen.render.search.procedure_words`, where already known."""
+    the theme's static files (``search``: False leaves the search index
+    out, for a caller that assembles it from documents it kept)."""
     published = pages.published_methods(collection, options)
     page_list = [
         pages.home_page(collection, options),
@@ -131,7 +131,8 @@ def render_shared(
         pages.indicator_page(i, collection, options) for i in sorted(collection.indicators)
     ]
     out = {p.path: _render(p, options) for p in page_list}
-    out.update(search_files(collection, published, search_texts))
+    if search:
+        out.update(search_files(collection, published))
     out.update(_static(options.theme_dir))
     return dict(sorted(out.items()))
 

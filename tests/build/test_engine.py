@@ -24,6 +24,7 @@ def _edit(path: Path, old: str, new: str) -> None:
 def _cold_contents(work: Path) -> dict[str, str]:
     """The site a cold build (fresh cache and output) makes of ``work``."""
     fresh = work.parent / "fresh"
+    shutil.rmtree(fresh, ignore_errors=True)
     shutil.copytree(work / "methods", fresh / "methods")
     shutil.copytree(work / "theme", fresh / "theme")
     import os
@@ -304,3 +305,51 @@ def test_kept_rule_findings_equal_a_full_check_and_follow_moved_lines(site: Path
         f.span.line + 2 for f in want if f.span.path.endswith(rec.name)]
     # and unchanged again: the kept findings are used as they are
     assert do_build(keep_going=True).check.findings == want2
+
+
+def test_kept_shared_pages_follow_every_field_but_the_procedure(site: Path) -> None:
+    # The shared pages are kept by every method's record minus its
+    # procedure: a title edit must reach the home page and the search
+    # index, a procedure edit the search index (and the site must equal a
+    # cold build each time).
+    rec = site / "methods/records/copper-iodometric.yaml"
+    title = re.search(r"^title: (.*)$", rec.read_text("utf-8"), re.M)
+    assert title
+    _edit(rec, f"title: {title.group(1)}", "title: Copper in brass by iodometry, revised")
+    assert do_build().written
+    assert "Copper in brass by iodometry, revised" in (site / "out/index.html").read_text("utf-8")
+    assert contents(site / "out") == _cold_contents(site)
+    _edit(rec, "\nprocedure: |\n", "\nprocedure: |\n  0. Zircon-dust check.\n")
+    assert do_build().written
+    assert "Zircon-dust" in (site / "out/search-index.json").read_text("utf-8")
+    assert contents(site / "out") == _cold_contents(site)
+
+
+def test_shared_pages_do_not_read_the_procedure(tmp_path: Path) -> None:
+    # What the engine's facts digest leaves out (its _OWN_ONLY fields) must
+    # not reach any shared page: give every demo method another procedure
+    # and compare the shared pages, search index aside.
+    from sitegen.build.engine import _OWN_ONLY
+    from sitegen.build.run import analyse_all
+    from sitegen.clock import build_date
+    from sitegen.load.collection import load_collection
+    from sitegen.render.site import RenderOptions, render_shared
+
+    from conftest import DEMO, THEME
+
+    assert _OWN_ONLY == {"procedure"}
+    src = tmp_path / "m"
+    shutil.copytree(DEMO, src)
+    options = RenderOptions(theme_dir=THEME, build_date=build_date(), generator_version="t")
+
+    def shared() -> dict[str, bytes]:
+        col = load_collection(src, cwd=tmp_path)
+        return render_shared(col, analyse_all(col), [], options, search=False)
+
+    before = shared()
+    for p in (src / "records").glob("*.yaml"):
+        text = p.read_text("utf-8")
+        assert "\nprocedure: |\n" in text
+        p.write_text(text.replace("\nprocedure: |\n", "\nprocedure: |\n  0. Other words.\n"),
+                     "utf-8")
+    assert shared() == before
