@@ -588,7 +588,7 @@ def _worked_result(
     out: _Collector,
 ) -> ResultInfo | None:
     from .calc import FORMULAS, result_value
-    from .units import ureg
+    from .units import convert
 
     calc = rec.calculation
     we = calc.worked_example
@@ -667,8 +667,7 @@ def _worked_result(
             inputs.append(("V_s", "aliquot volume", sample.value, "mL"))
             base = "mg/mL"
     try:
-        unit = ureg.Unit(calc.unit.replace("%", "percent"))
-        scale = float(ureg.Quantity(1.0, base).to(unit).magnitude)
+        scale = convert(1.0, base, calc.unit)
     except Exception:
         out.add(
             "bad-unit",
@@ -689,8 +688,7 @@ def _worked_result(
     decimals = 0
     number, _, stated_unit = we.result.strip().partition(" ")
     try:
-        su = ureg.Unit((stated_unit.strip() or calc.unit).replace("%", "percent"))
-        stated = float(ureg.Quantity(float(number), su).to(unit).magnitude)
+        stated = convert(float(number), stated_unit.strip() or calc.unit, calc.unit)
         decimals = len(number.split(".")[1]) if "." in number else 0
     except Exception:
         out.add(

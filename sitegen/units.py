@@ -12,11 +12,15 @@ __all__ = [
     "DIMENSIONS",
     "Measure",
     "UnitError",
+    "convert",
+    "known",
     "parse_measure",
+    "prime",
     "registry",
     "use_cache_folder",
 ]
 
+import contextlib
 import functools
 import re
 from dataclasses import dataclass
@@ -115,7 +119,78 @@ class Measure:
         return self.text
 
 
-@functools.lru_cache(maxsize=4096)
+#: What has been read and converted in this process (and, through
+#: :func:`known` and :func:`prime`, in earlier ones): (function name,
+#: arguments) -> the result, or the message of the UnitError raised.
+_MEMO: dict[tuple[Any, ...], Any] = {}
+
+
+def known() -> dict[tuple[Any, ...], Any]:
+    """Every quantity read and every conversion made so far, for a caller
+    that keeps them between processes (see :func:`prime`)."""
+    return dict(_MEMO)
+
+
+def prime(entries: dict[tuple[Any, ...], Any]) -> None:
+    """Take results of earlier processes (from :func:`known`, made with the
+    same code and pint release): a process whose quantities are all known
+    then never imports pint."""
+    for k, v in entries.items():
+        _MEMO.setdefault(k, v)
+
+
+def _memo(name: str) -> Any:
+    def wrap(func: Any) -> Any:
+        @functools.wraps(func)
+        def memoised(*args: Any) -> Any:
+            k = (name, *args)
+            try:
+                hit = _MEMO[k]
+            except (KeyError, TypeError):
+                try:
+                    hit = func(*args)
+                except UnitError as exc:
+                    hit = _Failed(str(exc))
+                with contextlib.suppress(TypeError):  # unhashable arguments: not kept
+                    _MEMO[k] = hit
+            if isinstance(hit, _Failed):
+                raise UnitError(hit.message)
+            return hit
+
+        return memoised
+
+    return wrap
+
+
+@dataclass(frozen=True)
+class _Failed:
+    message: str
+
+
+def convert(value: float, unit: str, to: str) -> float:
+    """``value`` in ``unit`` expressed in ``to`` (pint's conversion; ``%``
+    is read as percent).
+
+    Raises:
+        UnitError: either unit is unknown, or they measure different things.
+    """
+    return float(_convert(float(value), unit, to))
+
+
+@_memo("convert")
+def _convert(value: float, unit: str, to: str) -> float:
+    import pint
+
+    ureg = registry()
+    try:
+        a = ureg.Unit(unit.replace("%", "percent"))
+        b = ureg.Unit(to.replace("%", "percent"))
+        return float(ureg.Quantity(value, a).to(b).magnitude)
+    except (pint.errors.PintError, AttributeError, TypeError, ValueError) as exc:
+        raise UnitError(f"cannot express {unit!r} in {to!r}") from exc
+
+
+@_memo("measure")
 def parse_measure(text: str | int | float, kind: str) -> Measure:
     """Read ``"25.00 mL"`` as a :class:`Measure` of the given kind.
 

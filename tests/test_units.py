@@ -63,3 +63,38 @@ def test_a_registry_read_from_pint_disk_cache_converts_the_same(tmp_path):
     assert any(tmp_path.iterdir())
     assert run(str(tmp_path)) == fresh  # reads it
     assert fresh == pytest.approx([25.0, 298.15, 0.25, 0.02, 12.5], rel=1e-12)  # SI brochure
+
+
+def test_results_kept_between_processes_need_no_pint_and_agree(tmp_path):
+    # A build keeps what units.known() returns; a process primed with it
+    # reads the same quantities (and refuses the same bad ones) without
+    # importing pint.
+    import pickle
+    import subprocess
+    import sys
+
+    from sitegen import units
+
+    good = [("25.00 mL", "volume"), ("0.1 M", "concentration"), ("250.0 mg", "mass")]
+    want = [parse_measure(t, k) for t, k in good]
+    with pytest.raises(UnitError):
+        parse_measure("25 furlongs", "volume")
+    assert units.convert(12.5, "%", "mg/g") == pytest.approx(125.0)  # 1 % = 10 mg/g
+    kept = tmp_path / "kept.pickle"
+    kept.write_bytes(pickle.dumps(units.known()))
+    prog = (
+        "import pickle, sys\n"
+        "import sitegen.units as u\n"
+        "u.prime(pickle.load(open(sys.argv[1], 'rb')))\n"
+        f"got = [u.parse_measure(t, k) for t, k in {good!r}]\n"
+        "try:\n"
+        "    u.parse_measure('25 furlongs', 'volume'); bad = 'read'\n"
+        "except u.UnitError as e:\n"
+        "    bad = str(e)\n"
+        "print(pickle.dumps((got, bad, u.convert(12.5, '%', 'mg/g'), 'pint' in sys.modules)).hex())\n"
+    )
+    out = subprocess.run([sys.executable, "-c", prog, str(kept)], capture_output=True,
+                         text=True, check=True)
+    got, bad, conv, pint_loaded = pickle.loads(bytes.fromhex(out.stdout.strip()))
+    assert got == want and conv == pytest.approx(125.0)
+    assert "furlongs" in bad and not pint_loaded

@@ -466,12 +466,16 @@ class _Drawings:
 
 
 def _plot_library_version() -> str:
-    # read from the installed metadata: importing matplotlib to ask would
-    # cost what the drawing cache saves
+    return _library_version("matplotlib")
+
+
+def _library_version(name: str) -> str:
+    # read from the installed metadata: importing the library to ask would
+    # cost what the entries it keys save
     from importlib.metadata import PackageNotFoundError, version
 
     try:
-        return version("matplotlib")
+        return version(name)
     except PackageNotFoundError:  # pragma: no cover - a dependency
         return "unknown"
 
@@ -978,9 +982,16 @@ def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_
 
     # -- 2. load -----------------------------------------------------------------
     t0 = time.perf_counter()
-    from ..units import use_cache_folder
+    from .. import units
 
-    use_cache_folder(cache_root / "units")
+    units.use_cache_folder(cache_root / "units")
+    # the quantities and conversions earlier builds made, so that a build
+    # whose records hold only known ones never imports pint
+    units_key = key_of("units", code, _library_version("pint"))
+    remembered = cache.get("units", units_key)
+    if isinstance(remembered, dict):
+        units.prime(remembered)
+    units_before = len(remembered) if isinstance(remembered, dict) else 0
     collection = _load(source, cwd, cache, code, jobs)
     times["load"] = time.perf_counter() - t0
 
@@ -996,6 +1007,8 @@ def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_
     finally:
         runner.close()
         ticker.done()
+    if len(units.known()) > units_before:
+        cache.put("units", units_key, units.known())
     # The outcome is a function of the key's inputs, failures included, so
     # an unchanged rerun of a failing build answers at once too.
     _remember(cache, build_key, report, collection, manifest, digest)

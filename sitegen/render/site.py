@@ -79,7 +79,9 @@ def render_method_files(
             pages.method_page(method_id, collection, analysis, method_findings, options, drawings),
             options,
         ),
-        base + "bench.html": _render(pages.bench_page(method_id, collection, analysis, options), options),
+        base + "bench.html": _render(
+            pages.bench_page(method_id, collection, analysis, options), options
+        ),
         base + "method.json": method_json(loaded, analysis, method_findings),
     }
     if analysis is not None and analysis.curve is not None:

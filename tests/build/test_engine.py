@@ -246,6 +246,17 @@ def test_a_prose_edit_is_rebuilt_without_the_plotting_library(site: Path) -> Non
     assert "sitegen.analyse" in imported  # the record was analysed again
     assert not any(m == "matplotlib" or m.startswith("matplotlib.") for m in imported)
     assert contents(site / "out") == _cold_contents(site)
+    # the quantities the record holds are now known to the cache: another
+    # edit is read and analysed without importing pint either
+    _edit(site / "methods" / "records" / "copper-iodometric.yaml",
+          "\nprocedure: |\n", "\nprocedure: |\n  0. Dry the flask.\n")
+    r = run_cli("build", "methods", "--out", "out", "--theme", "theme", "--jobs", "2",
+                "--cache-dir", "cache", cwd=site, env={"PYTHONPROFILEIMPORTTIME": "1"})
+    assert r.returncode == 0, r.stderr[-3000:]
+    imported = {line.rsplit("|", 1)[-1].strip() for line in r.stderr.splitlines()
+                if line.startswith("import time:")}
+    assert "sitegen.analyse" in imported and "pint" not in imported
+    assert contents(site / "out") == _cold_contents(site)
 
 
 def test_a_memo_kept_between_builds_gives_the_same_site(site: Path) -> None:
