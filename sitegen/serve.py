@@ -216,6 +216,24 @@ def _build_once(args: Any, state: _State, err: TextIO) -> bool:
     return True
 
 
+def _warm_up() -> None:
+    """Import and build now what the first rebuild would otherwise wait
+    for: the validation, chemistry, checking and rendering code, the unit
+    registry and the plot canvas. The first build may have needed none of
+    it (every result came from the cache)."""
+    import importlib
+
+    for name in ("sitegen.analyse", "sitegen.check.rules", "sitegen.load.records",
+                 "sitegen.model", "sitegen.render.links", "sitegen.render.search",
+                 "sitegen.render.site"):
+        importlib.import_module(name)
+    from .render import plots
+    from .units import registry
+
+    registry()
+    plots._canvas()
+
+
 def serve(args: Any, out: TextIO, err: TextIO) -> int:
     """Build, serve and rebuild until interrupted.
 
@@ -256,8 +274,18 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
     thread.start()
     theme = Path(getattr(args, "theme", None) or default_theme())
     watched = [str(Path(args.source))] + ([str(theme)] if theme.is_dir() else [])
+    warm = True
     try:
-        for _changes in watchfiles.watch(*watched, debounce=300, step=50, raise_interrupt=True):
+        # yield_on_timeout: an empty set after each quiet second; the first
+        # one is used to load what a rebuild needs (changes made meanwhile
+        # are kept by the watcher and come next)
+        for changes in watchfiles.watch(*watched, debounce=300, step=30, raise_interrupt=True,
+                                        yield_on_timeout=True, rust_timeout=1000):
+            if not changes:
+                if warm:
+                    _warm_up()
+                    warm = False
+                continue
             if not _build_once(args, state, err):
                 return 2
     except KeyboardInterrupt:

@@ -160,11 +160,14 @@ def _read_manifest(out: Path) -> dict[str, Any] | None:
     return data if isinstance(data, dict) else None
 
 
-def _output_holds(out: Path, manifest: Mapping[str, tuple[str, int]], digest: str) -> bool:
+def _output_holds(out: Path, manifest: Mapping[str, tuple[str, int]], digest: str,
+                  recorded: dict[str, Any] | None = None) -> bool:
     """Whether ``out`` holds the file set of ``manifest``: its recorded
     digest matches and every file is there with its size (a cheap guard
-    against hand-deleted or truncated files)."""
-    recorded = _read_manifest(out)
+    against hand-deleted or truncated files). ``recorded``: the output's
+    manifest, when already read."""
+    if recorded is None:
+        recorded = _read_manifest(out)
     if recorded is None or recorded.get("digest") != digest:
         return False
     root = os.fspath(out)
@@ -182,7 +185,46 @@ def _manifest_bytes(manifest: Mapping[str, tuple[str, int]], digest: str) -> byt
         "digest": digest,
         "files": {rel: [sha, size] for rel, (sha, size) in sorted(manifest.items())},
     }
-    return (json.dumps(body, indent=1, sort_keys=True) + "\n").encode("utf-8")
+    # one file per line: readable and diffable, and quick to write
+    return (json.dumps(body, sort_keys=True, separators=(",", ":"))
+            .replace('],"', '],\n"') + "\n").encode("utf-8")
+
+
+class _Reuse(Mapping[str, str]):
+    """Path -> the current output's file holding exactly the new bytes
+    (its manifest entry and size agree), looked up only for the files the
+    write actually has to make."""
+
+    def __init__(self, out: Path, old_files: Mapping[str, Any],
+                 manifest: Mapping[str, tuple[str, int]]) -> None:
+        self._root = os.fspath(out)
+        self._old = old_files
+        self._manifest = manifest
+
+    def __getitem__(self, rel: str) -> str:
+        entry = self._manifest.get(rel)
+        if entry is None or self._old.get(rel) != [entry[0], entry[1]]:
+            raise KeyError(rel)
+        p = os.path.join(self._root, rel)
+        try:
+            if os.stat(p).st_size == entry[1]:
+                return p
+        except OSError:
+            pass
+        raise KeyError(rel)
+
+    def __contains__(self, rel: object) -> bool:
+        try:
+            self[rel]  # type: ignore[index]
+        except KeyError:
+            return False
+        return True
+
+    def __iter__(self) -> Iterator[str]:
+        return (rel for rel in self._manifest if rel in self)
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self)
 
 
 # ----------------------------------------------------------------------------
@@ -433,6 +475,9 @@ class _Rendered:
     #: the method's search-index document (None: not indexed), kept so that
     #: the index is assembled without reading unchanged records
     search_doc: dict[str, Any] | None = None
+    #: per HTML page, digests of its ids and of its links (what the link
+    #: check compares with the last good check)
+    link_keys: dict[str, tuple[str, str]] = field(default_factory=dict)
 
 
 def _render_many(
@@ -498,7 +543,8 @@ def _render_entry(cache: Cache, code: str, collection: Any, mid: str, key: str,
         meta[rel] = (cache.put_blob(data, force=force), len(data))
         if rel.endswith(".html"):
             links[rel] = page_links(data)
-    entry = _Rendered(meta, links, search_document(mid, collection.methods[mid], collection))
+    entry = _Rendered(meta, links, search_document(mid, collection.methods[mid], collection),
+                      _link_keys(links))
     cache.put("render", key, entry)
     return entry
 
@@ -696,6 +742,10 @@ def _loaded_hit(cache: Cache, key: str, src: Any) -> Any:
 # Links
 
 
+def _link_keys(links: Mapping[str, PageLinks]) -> dict[str, tuple[str, str]]:
+    return {rel: (key_of(s[0]), key_of(s[1])) for rel, s in links.items()}
+
+
 def _broken_links(
     cache: Cache, out: Path, pages: Mapping[str, bytes], entries: Iterable[_Rendered]
 ) -> list[tuple[str, str, str]]:
@@ -707,17 +757,20 @@ def _broken_links(
     from ..render.links import check_summaries, page_links
 
     summaries: dict[str, PageLinks] = {}
+    keys: dict[str, tuple[str, str]] = {}
     names: list[str] = list(pages)
     for rel, data in pages.items():
         if rel.endswith(".html"):
             summaries[rel] = page_links(data)
+            keys.update(_link_keys({rel: summaries[rel]}))
     for entry in entries:
         names.extend(entry.files)
         summaries.update(entry.links)
+        keys.update(entry.link_keys)
     names.sort()
     names_key = key_of(names)
-    ids_key = key_of(sorted((p, s[0]) for p, s in summaries.items()))
-    page_keys = {p: key_of(s[1]) for p, s in summaries.items()}
+    ids_key = key_of(sorted((p, k[0]) for p, k in keys.items()))
+    page_keys = {p: k[1] for p, k in keys.items()}
     state_key = key_of("links", str(out.resolve()))
     prev = cache.get("links", state_key)
     if (
@@ -779,22 +832,11 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
     """Write the site unless ``out`` already holds it; True if written."""
     from .write import spare_dir, write_site
 
-    if _output_holds(out, manifest, digest):
-        return False
     previous = _read_manifest(out) or {}
+    if previous.get("digest") == digest and _output_holds(out, manifest, digest, previous):
+        return False
     old_files = previous.get("files")
-    if not isinstance(old_files, dict):
-        old_files = {}
-    reuse: dict[str, str] = {}
-    root = os.fspath(out)
-    for rel, (sha, size) in manifest.items():
-        if old_files.get(rel) == [sha, size]:
-            p = os.path.join(root, rel)
-            try:
-                if os.stat(p).st_size == size:
-                    reuse[rel] = p
-            except OSError:
-                pass
+    reuse = _Reuse(out, old_files if isinstance(old_files, dict) else {}, manifest)
     # the spare folder holds the site before the current one: the files it
     # holds with the new bytes stay, the others are replaced (write_site
     # discards a spare that a killed build left half-changed)
@@ -1306,9 +1348,10 @@ def _build_loaded(
         from ..render.links import page_links
 
         files = render_shared(collection, analyses, findings, options, search=False)
+        links = {rel: page_links(data) for rel, data in files.items() if rel.endswith(".html")}
         entry = _Rendered(
             {rel: (cache.put_blob(data, force=force), len(data)) for rel, data in files.items()},
-            {rel: page_links(data) for rel, data in files.items() if rel.endswith(".html")},
+            links, None, _link_keys(links),
         )
         cache.put("shared", shared_key, entry)
         return entry

@@ -218,7 +218,7 @@ def _serve_freshness(work: Path, rec: Path, jobs: int | None, repeats: int) -> l
         url = f"http://{m.group(1)}:{m.group(2)}/methods/{rec.stem}/index.html"
         times = []
         for k in range(repeats):
-            marker = f"Served edit {k}."
+            marker = f"Served edit {k} at {time.time_ns()}."
             time.sleep(1.0)  # let the watcher settle
             _edit(rec, marker)
             t0 = time.perf_counter()
