@@ -276,11 +276,11 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
     watched = [str(Path(args.source))] + ([str(theme)] if theme.is_dir() else [])
     warm = True
     try:
-        # yield_on_timeout: an empty set after each quiet second; the first
+        # yield_on_timeout: an empty set after each quiet 0.1 s; the first
         # one is used to load what a rebuild needs (changes made meanwhile
         # are kept by the watcher and come next)
         for changes in watchfiles.watch(*watched, debounce=300, step=30, raise_interrupt=True,
-                                        yield_on_timeout=True, rust_timeout=1000):
+                                        yield_on_timeout=True, rust_timeout=100):
             if not changes:
                 if warm:
                     _warm_up()

@@ -33,6 +33,8 @@ __all__ = [
     "default_cache_dir",
     "digest_bytes",
     "dumps",
+    "file_digest",
+    "file_signature",
     "key_of",
     "loads",
     "tree_digest",
@@ -45,6 +47,7 @@ import io
 import os
 import pickle
 import tempfile
+import time
 import types
 from pathlib import Path
 from typing import Any
@@ -98,34 +101,89 @@ def digest_bytes(data: bytes) -> str:
 
 
 def key_of(*parts: object) -> str:
-    """A key from parts; each part is written with its length so that
-    ``("ab", "c")`` and ``("a", "bc")`` give different keys."""
+    """A key from parts: the digest of their ``repr`` (a tuple's repr
+    quotes and escapes every string, so ``("ab", "c")`` and ``("a", "bc")``
+    differ); bytes parts are hashed as they are, each with its length."""
     h = hashlib.sha256()
-    for part in parts:
-        b = part if isinstance(part, bytes) else repr(part).encode("utf-8")
-        h.update(str(len(b)).encode("ascii") + b":")
-        h.update(b)
+    if any(isinstance(p, bytes) for p in parts):
+        for part in parts:
+            b = part if isinstance(part, bytes) else repr(part).encode("utf-8")
+            h.update(str(len(b)).encode("ascii") + b":")
+            h.update(b)
+    else:
+        h.update(repr(parts).encode("utf-8"))
     return h.hexdigest()
 
 
-def tree_digest(folder: Path, skip_hidden: bool = True) -> str:
-    """Digest of every file under ``folder``: relative paths and bytes.
+def tree_digest(folder: Path, skip_hidden: bool = True,
+                known: dict[str, tuple[Any, Any]] | None = None) -> str:
+    """Digest of every file under ``folder``: relative paths and contents.
 
     A missing folder has a digest too (of nothing), so that creating it
-    later changes the digest.
+    later changes the digest. ``known``: see :func:`file_digest`.
     """
     h = hashlib.sha256()
     if folder.is_dir():
-        for p in sorted(folder.rglob("*")):
-            rel = p.relative_to(folder)
-            if skip_hidden and any(part.startswith(".") for part in rel.parts):
-                continue
-            if "__pycache__" in rel.parts or p.suffix == ".pyc" or not p.is_file():
-                continue
-            data = p.read_bytes()
-            h.update(f"{rel.as_posix()}\0{len(data)}\0".encode())
-            h.update(data)
+        for rel, path in _files_under(os.fspath(folder), skip_hidden):
+            size, digest = file_digest(path, known)
+            h.update(f"{rel}\0{size}\0{digest}\0".encode())
     return h.hexdigest()
+
+
+def _files_under(root: str, skip_hidden: bool) -> list[tuple[str, str]]:
+    """(relative POSIX path, path) of every regular file under ``root``
+    (following links, as pathlib's rglob did), sorted by relative path;
+    no __pycache__ or .pyc, and no hidden names when ``skip_hidden``."""
+    out: list[tuple[str, str]] = []
+    seen: set[str] = set()
+    for folder, dirs, names in os.walk(root, followlinks=True):
+        real = os.path.realpath(folder)
+        if real in seen:  # a link back to a folder already walked
+            dirs[:] = []
+            continue
+        seen.add(real)
+        rel_dir = os.path.relpath(folder, root).replace(os.sep, "/")
+        keep = [d for d in dirs if d != "__pycache__" and not (skip_hidden and d.startswith("."))]
+        dirs[:] = keep
+        for name in names:
+            if name.endswith(".pyc") or (skip_hidden and name.startswith(".")):
+                continue
+            path = os.path.join(folder, name)
+            if not os.path.isfile(path):
+                continue
+            out.append((name if rel_dir == "." else f"{rel_dir}/{name}", path))
+    return sorted(out)
+
+
+def file_signature(st: os.stat_result) -> tuple[int, int, int, int] | None:
+    """What a file's metadata says about its contents, or None while the
+    file may still be changing within one clock tick (modified less than
+    two seconds ago: two writes in one tick can leave the same metadata)."""
+    now = time.time_ns()
+    if now - max(st.st_mtime_ns, st.st_ctime_ns) < 2_000_000_000:
+        return None
+    return (st.st_size, st.st_mtime_ns, st.st_ctime_ns, st.st_ino)
+
+
+def file_digest(path: str, known: dict[str, tuple[Any, Any]] | None = None) -> tuple[int, str]:
+    """(size, sha256) of a file. ``known``: a dict kept by a long-lived
+    process; a file whose metadata has not changed since it was last read
+    (:func:`file_signature`) is not read again."""
+    if known is not None:
+        st = os.stat(path)
+        sig = file_signature(st)
+        hit = known.get(path)
+        if sig is not None and hit is not None and hit[0] == sig:
+            return hit[1]
+        with open(path, "rb") as fh:
+            data = fh.read()
+        value = (len(data), digest_bytes(data))
+        if sig is not None:
+            known[path] = (sig, value)
+        return value
+    with open(path, "rb") as fh:
+        data = fh.read()
+    return len(data), digest_bytes(data)
 
 
 @functools.cache
@@ -220,11 +278,21 @@ class Cache:
             self.used.add((kind, key))
             self.memo[(kind, key)] = value
 
+    def files_known(self) -> dict[str, tuple[Any, Any]] | None:
+        """With a memo: the dict in it where file digests and sources are
+        kept by file metadata (see :func:`file_digest`); None without."""
+        if self.memo is None:
+            return None
+        self.used.add(("files", ""))
+        known = self.memo.setdefault(("files", ""), {})
+        return known  # type: ignore[no-any-return]
+
     def forget_unused(self) -> None:
         """Drop from the memo every entry this object did not touch (the
         memo then holds what the last build used, not every build's)."""
         # (a build answered from its snapshot used nothing else: keep all)
-        if self.memo is not None and any(kind != "build" for kind, _ in self.used):
+        if self.memo is not None and any(kind not in ("build", "files")
+                                         for kind, _ in self.used):
             for k in [k for k in self.memo if k not in self.used]:
                 del self.memo[k]
 

@@ -673,7 +673,8 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
     col = lc.start_collection(root, cwd, validate)
     # read everything first, so that the records the cache lacks can be
     # validated in parallel; the collection is then assembled in order
-    items = lc.read_records(col, cwd)
+    known = cache.files_known()
+    items = lc.read_records(col, cwd, read=_reader(known) if known is not None else lc.read_source)
     results: dict[str, Any] = {}
     keys: list[str] = []
     misses: list[tuple[str, Any, str]] = []
@@ -718,6 +719,30 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
             cache.put("card", card_key, _card_of(loaded, findings))
     lc.add_records(col, items, [results[k] for k in keys])
     return col
+
+
+def _reader(known: dict[str, tuple[Any, Any]]) -> Any:
+    """:func:`sitegen.load.source.read_source` for a long-lived process: a
+    file whose metadata has not changed since it was last read is not read
+    again (:func:`sitegen.build.cache.file_signature`)."""
+    from ..build.cache import file_signature
+    from ..load.source import Source, read_source
+
+    def read(path: Path, shown: str) -> Any:
+        k = "source\0" + os.fspath(path) + "\0" + shown
+        try:
+            sig = file_signature(os.stat(path))
+        except OSError:
+            sig = None
+        hit = known.get(k)
+        if sig is not None and hit is not None and hit[0] == sig:
+            return hit[1]
+        src = read_source(path, shown)
+        if sig is not None and isinstance(src, Source):
+            known[k] = (sig, src)
+        return src
+
+    return read
 
 
 def _enable_collector() -> None:
@@ -850,7 +875,8 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
     files = dict(manifest)
     files[MANIFEST] = (digest_bytes(b""), 0)  # placeholder, replaced below
     lazy = _LazyFiles(cache, {**shared, MANIFEST: _manifest_bytes(manifest, digest)}, files)
-    write_site(out, lazy, reuse=reuse, spare_holds=holds)
+    write_site(out, lazy, reuse=reuse, spare_holds=holds,
+               spare_lists=[*spare_files, MANIFEST] if isinstance(spare_files, dict) else None)
     return True
 
 
@@ -999,9 +1025,10 @@ def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_
 
     # -- 1. the whole build, by one key --------------------------------------
     t0 = time.perf_counter()
-    theme_digest = tree_digest(theme_dir)
+    known = cache.files_known()
+    theme_digest = tree_digest(theme_dir, known=known)
     build_key = key_of(
-        FORMAT, "build", code, tree_digest(source), _shown(source, cwd), theme_digest,
+        FORMAT, "build", code, tree_digest(source, known=known), _shown(source, cwd), theme_digest,
         repr(settings), keep_going, enabled_t, date.isoformat(),
     )
     snap = cache.get("build", build_key)
@@ -1321,7 +1348,9 @@ def _build_loaded(
         render_keys[mid] = key
         own_findings[mid] = own
         hit = cache.get("render", key)
-        if isinstance(hit, _Rendered) and all(cache.has_blob(s) for s, _ in hit.files.values()):
+        # (a blob lost from the cache is found when the write needs it, and
+        # that method is rendered again then)
+        if isinstance(hit, _Rendered):
             rendered[mid] = hit
         else:
             render_todo.append((mid, key, analyses.get(mid), own))
@@ -1357,8 +1386,7 @@ def _build_loaded(
         return entry
 
     shared_entry = cache.get("shared", shared_key)
-    if not (isinstance(shared_entry, _Rendered)
-            and all(cache.has_blob(sha) for sha, _ in shared_entry.files.values())):
+    if not isinstance(shared_entry, _Rendered):
         shared_entry = render_shared_entry()
     extra = search_files(collection, published,
                          [entry.search_doc for entry in rendered.values()])

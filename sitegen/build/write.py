@@ -121,6 +121,7 @@ def write_site(
     files: Mapping[str, bytes],
     reuse: Mapping[str, str | Path] | None = None,
     spare_holds: Collection[str] | None = None,
+    spare_lists: Collection[str] | None = None,
 ) -> None:
     """Stage ``files`` beside ``out`` and swap the staged folder in.
 
@@ -142,6 +143,9 @@ def write_site(
             current, for the next build. Without it (or without a usable
             spare) the site is staged from nothing and the previous site
             deleted.
+        spare_lists: every file the spare holds, as the build that wrote
+            it listed them; when given, only those that are not kept are
+            removed (no walk over the spare's folders).
 
     A spare is marked while it is changed, so one that a killed build left
     half-changed is never trusted again; the published folder is only ever
@@ -179,11 +183,15 @@ def write_site(
         if keep:
             _write_file(staging / _DIRTY, b"")
             _fsync_path(root)
-            _prune(root, set(files), set(keep))
+            if spare_lists is not None:
+                _remove_listed(root, set(spare_lists) - (set(keep) & set(files)))
+            else:
+                _prune(root, set(files), set(keep))
         else:
             staging.mkdir()
             _write_file(staging / _DIRTY, b"")
-        reuse = reuse or {}
+        if reuse is None:
+            reuse = {}
         made: set[str] = {root}
         for rel in sorted(files):
             if rel in keep:
@@ -260,6 +268,28 @@ def _prune(root: str, wanted: set[str], keep: set[str]) -> None:
                 os.unlink(path)
             elif not os.listdir(path):
                 os.rmdir(path)
+
+
+def _remove_listed(root: str, rels: Collection[str]) -> None:
+    """Delete these files under ``root`` (missing ones are fine), then
+    every folder they leave empty."""
+    folders: set[str] = set()
+    for rel in rels:
+        if rel in (MARKER, _DIRTY):
+            continue
+        path = _target(root, rel)
+        try:
+            os.unlink(path)
+        except FileNotFoundError:
+            continue
+        folders.add(os.path.dirname(path))
+    for folder in sorted(folders, key=len, reverse=True):
+        while folder != root and folder.startswith(root + os.sep):
+            try:
+                os.rmdir(folder)  # only when empty
+            except OSError:
+                break
+            folder = os.path.dirname(folder)
 
 
 def _fsync_path(path: str) -> None:

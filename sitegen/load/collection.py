@@ -16,6 +16,7 @@ from __future__ import annotations
 __all__ = [
     "KINDS",
     "Collection",
+    "Reader",
     "Validated",
     "add_records",
     "find_root",
@@ -116,9 +117,14 @@ class _Shower:
             return str(path)
 
 
-def _read(path: Path, cwd: Path, col: Collection, shown: str | None = None) -> Source | None:
+#: Reads one file: (path, shown path) -> its source or why it cannot be read.
+Reader = Callable[[Path, str], "Source | SourceProblem"]
+
+
+def _read(path: Path, cwd: Path, col: Collection, shown: str | None = None,
+          read: Reader = read_source) -> Source | None:
     shown = shown if shown is not None else _shown(path, cwd)
-    src = read_source(path, shown)
+    src = read(path, shown)
     if isinstance(src, SourceProblem):
         col.findings.append(
             Finding(src.rule, Severity.ERROR, src.message, Span(shown, src.line, src.col))
@@ -165,12 +171,13 @@ def start_collection(
 
 
 def read_records(
-    col: Collection, cwd: Path, only: Iterable[Path] | None = None
+    col: Collection, cwd: Path, only: Iterable[Path] | None = None, read: Reader = read_source
 ) -> list[tuple[str, Path, Source]]:
     """Read every record file of the kind folders, in order: (kind folder,
     path, source). A file that cannot be read, or that links out of the
     source folder, becomes a finding and is marked unloadable. ``only``:
-    the method record files to read (all by default)."""
+    the method record files to read (all by default); ``read``: how a file
+    is read (:func:`sitegen.load.source.read_source`)."""
     shower = _Shower(cwd)
     root_real = col.root.resolve()
     only_set = {p.resolve() for p in only} if only is not None else None
@@ -193,7 +200,7 @@ def read_records(
                 )
                 failed.add(path.stem)
                 continue
-            src = _read(path, cwd, col, shower.shown(path, is_link))
+            src = _read(path, cwd, col, shower.shown(path, is_link), read)
             if src is None:
                 failed.add(path.stem)
                 continue

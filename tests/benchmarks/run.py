@@ -219,7 +219,7 @@ def _serve_freshness(work: Path, rec: Path, jobs: int | None, repeats: int) -> l
         times = []
         for k in range(repeats):
             marker = f"Served edit {k} at {time.time_ns()}."
-            time.sleep(1.0)  # let the watcher settle
+            time.sleep(3.0 if k == 0 else 1.0)  # let the server settle and warm up
             _edit(rec, marker)
             t0 = time.perf_counter()
             while True:
