@@ -174,7 +174,7 @@ def _is_loopback(host: str) -> bool:
         return False
 
 
-def _build_once(args: Any, state: _State, err: TextIO) -> bool:
+def _build_once(args: Any, state: _State, err: TextIO, warm: bool = False) -> bool:
     """Build; publish the outcome to the server. False if the output
     folder was refused (nothing can be served then)."""
     from .build.engine import build
@@ -187,7 +187,7 @@ def _build_once(args: Any, state: _State, err: TextIO) -> bool:
             Path(args.source), Path(args.out),
             settings=Settings(today=build_date(), strict=bool(getattr(args, "strict", False))),
             theme=getattr(args, "theme", None), jobs=getattr(args, "jobs", None), progress=err,
-            cache_dir=getattr(args, "cache_dir", None), memo=state.memo,
+            cache_dir=getattr(args, "cache_dir", None), memo=state.memo, warm=warm,
         )
     except OutputRefused as exc:
         print(f"sitegen serve: error: {exc}", file=err)
@@ -257,7 +257,9 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
         print(f"sitegen serve: warning: listening on {host}: anyone who can reach this"
               " machine can read the preview", file=err)
     state = _State()
-    if not _build_once(args, state, err):
+    # the first build runs every stage, so that the memo holds what the
+    # next rebuild reads
+    if not _build_once(args, state, err, warm=True):
         return 2
     handler = type("Handler", (_Handler,), {"state": state, "site": Path(args.out).resolve()})
     try:

@@ -281,17 +281,22 @@ class Cache:
     def files_known(self) -> dict[str, tuple[Any, Any]] | None:
         """With a memo: the dict in it where file digests and sources are
         kept by file metadata (see :func:`file_digest`); None without."""
+        return self.side_memo("files")
+
+    def side_memo(self, name: str) -> dict[Any, Any] | None:
+        """With a memo: a dict in it for values a long-lived process keeps
+        by keys of its own (kept whole between builds); None without."""
         if self.memo is None:
             return None
-        self.used.add(("files", ""))
-        known = self.memo.setdefault(("files", ""), {})
+        self.used.add(("side", name))
+        known = self.memo.setdefault(("side", name), {})
         return known  # type: ignore[no-any-return]
 
     def forget_unused(self) -> None:
         """Drop from the memo every entry this object did not touch (the
         memo then holds what the last build used, not every build's)."""
         # (a build answered from its snapshot used nothing else: keep all)
-        if self.memo is not None and any(kind not in ("build", "files")
+        if self.memo is not None and any(kind not in ("build", "side")
                                          for kind, _ in self.used):
             for k in [k for k in self.memo if k not in self.used]:
                 del self.memo[k]

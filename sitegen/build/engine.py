@@ -383,9 +383,37 @@ class _Deps:
     record under that id changes the key as well as editing it.
     """
 
-    def __init__(self, collection: Any) -> None:
+    def __init__(self, collection: Any, memo: dict[Any, Any] | None = None) -> None:
         self.col = collection
         self._named: dict[tuple[str, str], set[str]] = {}
+        # a long-lived process keeps each method's answer by its text and
+        # the id sets and shared records it was computed against
+        self._memo = memo
+        self._tables = ""
+        if memo is not None:
+            self._tables = key_of(
+                sorted(collection.methods),
+                sorted((k, lo.source.path, lo.source.digest)
+                       for k, lo in collection.reagents.items()),
+                sorted((k, lo.source.path, lo.source.digest)
+                       for k, lo in collection.indicators.items()),
+            )
+            if memo.get("tables") != self._tables:
+                # answers against other tables are never asked for again
+                memo.clear()
+                memo["tables"] = self._tables
+
+    def of(self, mid: str) -> tuple[set[str], set[str], list[tuple[str, str, str]]]:
+        """:meth:`closure` and :meth:`record_parts` of one method."""
+        src = self.col.methods[mid].source
+        k = ("deps", mid, src.path, src.digest, self._tables)
+        if self._memo is not None and k in self._memo:
+            return self._memo[k]  # type: ignore[no-any-return]
+        names, methods = self.closure(mid)
+        value = (names, methods, self.record_parts(names))
+        if self._memo is not None:
+            self._memo[k] = value
+        return value
 
     def _names_of(self, kind: str, rid: str, loaded: Any) -> set[str]:
         k = (kind, rid)
@@ -931,6 +959,7 @@ def build(
     cache_dir: Path | None = None,
     enabled: Iterable[str] | None = None,
     memo: dict[tuple[str, str], Any] | None = None,
+    warm: bool = False,
 ) -> BuildReport:
     """Build the site from ``source`` into ``out``, reusing every result
     whose inputs have not changed.
@@ -952,6 +981,8 @@ def build(
         enabled: rule ids to run (default: all).
         memo: kept between builds by a long-lived caller (see
             :class:`sitegen.build.cache.Cache`).
+        warm: run every stage even when the whole build is unchanged (to
+            fill ``memo``; the output is still rewritten only if it differs).
 
     Returns:
         The report; ``written`` is True when the output holds the new site.
@@ -977,7 +1008,7 @@ def build(
     try:
         with _collector(False):
             return _build(source, out, settings, keep_going, theme_dir, jobs, progress,
-                          enabled, cache, cache_root)
+                          enabled, cache, cache_root, warm)
     finally:
         cache.forget_unused()
 
@@ -1011,7 +1042,7 @@ def _collector(on: bool) -> Iterator[None]:
 
 def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_dir: Path,
            jobs: int | None, progress: TextIO | None, enabled: Iterable[str] | None,
-           cache: Cache, cache_root: Path) -> BuildReport:
+           cache: Cache, cache_root: Path, warm: bool = False) -> BuildReport:
     from ..clock import build_date
 
     cwd = Path.cwd().resolve()
@@ -1033,7 +1064,7 @@ def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_
     )
     snap = cache.get("build", build_key)
     times["scan"] = time.perf_counter() - t0
-    if isinstance(snap, _Snapshot) and (
+    if not warm and isinstance(snap, _Snapshot) and (
         not snap.written
         or _output_holds(out, snap.manifest, snap.digest)
         or _restore(out, cache, snap)
@@ -1256,7 +1287,7 @@ def _build_loaded(
 
     # -- 3. analyse --------------------------------------------------------------
     t0 = time.perf_counter()
-    deps = _Deps(collection)
+    deps = _Deps(collection, cache.side_memo("deps"))
     # the lab's safety rules apply to every method's hazard summary
     sr = collection.safety_rules_source
     safety_key = (sr.path, sr.digest) if sr is not None else None
@@ -1265,12 +1296,9 @@ def _build_loaded(
     analyses = _Analyses(cache, lambda mid, key: _analyse_many(runner.state, [(mid, key)])[0][1])
     todo: list[tuple[str, str]] = []
     for mid, loaded in sorted(collection.methods.items()):
-        names, methods = deps.closure(mid)
+        names, methods, parts = deps.of(mid)
         closures[mid] = (names, methods)
-        key = key_of(
-            "analysis", code, loaded.source.path, loaded.source.digest, deps.record_parts(names),
-            safety_key,
-        )
+        key = key_of("analysis", code, loaded.source.path, loaded.source.digest, parts, safety_key)
         analysis_keys[mid] = key
         if cache.has("analysis", key):
             analyses.add_cached(mid, key)
