@@ -213,15 +213,33 @@ def _build_once(args: Any, state: _State, err: TextIO, warm: bool = False) -> bo
         for line in lines:
             print(line, file=err)
     err.flush()
+    _settle_heap()
     return True
 
 
-def _warm_up() -> None:
+def _settle_heap() -> None:
+    """Collect the build's garbage now, between builds, and move what
+    stays (the memo) out of the collector's reach: a collection during the
+    next rebuild would otherwise walk the whole kept heap."""
+    import gc
+
+    gc.collect()
+    gc.freeze()
+
+
+def _warm_up(theme: Path) -> None:
     """Import and build now what the first rebuild would otherwise wait
     for: the validation, chemistry, checking and rendering code, the unit
-    registry and the plot canvas. The first build may have needed none of
-    it (every result came from the cache)."""
+    registry, the theme's compiled templates and the plot canvas. The
+    first build may have needed none of it (every result came from the
+    cache)."""
     import importlib
+
+    from .render.env import environment
+
+    env = environment(theme)
+    for name in env.list_templates(extensions=["html"]):
+        env.get_template(name)
 
     for name in ("sitegen.analyse", "sitegen.check.rules", "sitegen.load.records",
                  "sitegen.model", "sitegen.render.links", "sitegen.render.search",
@@ -285,7 +303,7 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
                                         yield_on_timeout=True, rust_timeout=100):
             if not changes:
                 if warm:
-                    _warm_up()
+                    _warm_up(theme)
                     warm = False
                 continue
             if not _build_once(args, state, err):

@@ -403,14 +403,17 @@ class _Deps:
                 memo.clear()
                 memo["tables"] = self._tables
 
-    def of(self, mid: str) -> tuple[set[str], set[str], list[tuple[str, str, str]]]:
-        """:meth:`closure` and :meth:`record_parts` of one method."""
+    def of(self, mid: str) -> tuple[set[str], set[str], str, str]:
+        """One method's :meth:`closure` (names reached, methods among
+        them), a digest of its :meth:`record_parts` and a digest of which
+        of the names are method ids now."""
         src = self.col.methods[mid].source
         k = ("deps", mid, src.path, src.digest, self._tables)
         if self._memo is not None and k in self._memo:
             return self._memo[k]  # type: ignore[no-any-return]
         names, methods = self.closure(mid)
-        value = (names, methods, self.record_parts(names))
+        value = (names, methods, key_of(self.record_parts(names)),
+                 key_of([(n, n in self.col.methods) for n in sorted(names)]))
         if self._memo is not None:
             self._memo[k] = value
         return value
@@ -1166,7 +1169,7 @@ class _Checked:
 def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Settings,
                  enabled: tuple[str, ...] | None, cache: Cache, code: str,
                  analysis_keys: Mapping[str, str],
-                 closures: Mapping[str, tuple[set[str], set[str]]]) -> _Checked:
+                 closures: Mapping[str, tuple[set[str], set[str], str]]) -> _Checked:
     """:func:`sitegen.build.run.run_checks`, with each method's rule
     findings kept by everything they can depend on (the analysis key
     covers the record and the records it names; the ids it names and
@@ -1200,11 +1203,10 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
     by_method: dict[str, tuple[Finding, ...]] = {}
     digests: dict[str, str] = {}
     for mid in sorted(collection.methods):
-        names, methods = closures[mid]
+        _names, methods, presence = closures[mid]
         ck = key_of(
             "checks", rules_key, analysis_keys[mid],
-            [(m, analysis_keys.get(m)) for m in sorted(methods)],
-            [(n, n in collection.methods) for n in sorted(names)],
+            [(m, analysis_keys.get(m)) for m in sorted(methods)], presence,
         )
         hit = cache.get("checks", ck)
         if not (isinstance(hit, tuple) and len(hit) == 3):
@@ -1292,12 +1294,12 @@ def _build_loaded(
     sr = collection.safety_rules_source
     safety_key = (sr.path, sr.digest) if sr is not None else None
     analysis_keys: dict[str, str] = {}
-    closures: dict[str, tuple[set[str], set[str]]] = {}
+    closures: dict[str, tuple[set[str], set[str], str]] = {}
     analyses = _Analyses(cache, lambda mid, key: _analyse_many(runner.state, [(mid, key)])[0][1])
     todo: list[tuple[str, str]] = []
     for mid, loaded in sorted(collection.methods.items()):
-        names, methods, parts = deps.of(mid)
-        closures[mid] = (names, methods)
+        names, methods, parts, presence = deps.of(mid)
+        closures[mid] = (names, methods, presence)
         key = key_of("analysis", code, loaded.source.path, loaded.source.digest, parts, safety_key)
         analysis_keys[mid] = key
         if cache.has("analysis", key):
@@ -1367,11 +1369,11 @@ def _build_loaded(
         # (pages.method_findings, without reading the analysis back)
         own = sort_findings({*findings_at.get(loaded.source.path, []),
                              *checked.analysis_findings.get(mid, ())})
-        names, methods = closures[mid]
+        _names, methods, presence = closures[mid]
         key = key_of(
-            "render", globals_key, analysis_keys[mid], repr(own),
+            "render", globals_key, analysis_keys[mid], repr(own) if own else "",
             [(m, analysis_keys.get(m), m in published) for m in sorted(methods)],
-            [(s, s in collection.methods) for s in sorted(names)],
+            presence,
         )
         render_keys[mid] = key
         own_findings[mid] = own
