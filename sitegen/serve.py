@@ -241,13 +241,23 @@ def _warm_up(theme: Path) -> None:
     for name in env.list_templates(extensions=["html"]):
         env.get_template(name)
 
-    for name in ("sitegen.analyse", "sitegen.check.rules", "sitegen.load.records",
-                 "sitegen.model", "sitegen.render.links", "sitegen.render.search",
-                 "sitegen.render.site"):
+    import pkgutil
+
+    from . import chem
+
+    names = ["sitegen.analyse", "sitegen.budget", "sitegen.calc", "sitegen.check.rules",
+             "sitegen.load.records", "sitegen.model", "sitegen.render.links",
+             "sitegen.render.search", "sitegen.render.site", "lxml.etree"]
+    names += [f"sitegen.chem.{m.name}" for m in pkgutil.iter_modules(chem.__path__)]
+    for name in names:
         importlib.import_module(name)
+    from .load.collection import KINDS
+    from .model import SiteConfig
     from .render import plots
     from .units import registry
 
+    for model in (*KINDS.values(), SiteConfig):
+        model.model_rebuild()  # pydantic builds deferred validators here
     registry()
     plots._canvas()
 

@@ -96,25 +96,26 @@ def _shown(path: Path, cwd: Path) -> str:
 class _Shower:
     """Shown paths of many files: each folder is resolved once, and a file
     only when it is a symbolic link (the shown path is the resolved one,
-    relative to ``cwd`` when inside it)."""
+    relative to ``cwd`` when inside it). Plain strings: a collection has
+    thousands of files."""
 
     def __init__(self, cwd: Path) -> None:
-        self.cwd = cwd
-        self._folders: dict[Path, Path] = {}
+        self.cwd = os.fspath(cwd)
+        self._folders: dict[str, str] = {}
 
-    def resolve(self, path: Path, is_link: bool) -> Path:
+    def real(self, path: Path, is_link: bool) -> str:
         if is_link:
-            return path.resolve()
-        folder = self._folders.get(path.parent)
+            return os.path.realpath(path)
+        parent = os.path.dirname(os.fspath(path))
+        folder = self._folders.get(parent)
         if folder is None:
-            folder = self._folders[path.parent] = path.parent.resolve()
-        return folder / path.name
+            folder = self._folders[parent] = os.path.realpath(parent)
+        return os.path.join(folder, path.name)
 
-    def shown(self, path: Path, is_link: bool) -> str:
-        try:
-            return str(self.resolve(path, is_link).relative_to(self.cwd))
-        except ValueError:
-            return str(path)
+    def shown(self, path: Path, real: str) -> str:
+        if real.startswith(self.cwd + os.sep):
+            return real[len(self.cwd) + 1 :]
+        return str(path)
 
 
 #: Reads one file: (path, shown path) -> its source or why it cannot be read.
@@ -179,28 +180,28 @@ def read_records(
     the method record files to read (all by default); ``read``: how a file
     is read (:func:`sitegen.load.source.read_source`)."""
     shower = _Shower(cwd)
-    root_real = col.root.resolve()
-    only_set = {p.resolve() for p in only} if only is not None else None
+    root_real = os.path.realpath(col.root)
+    only_set = {os.fspath(p.resolve()) for p in only} if only is not None else None
     out: list[tuple[str, Path, Source]] = []
     for folder in KINDS:
         failed = col.unloadable.setdefault(folder, set())
         for path, is_link in _files(col.root / folder):
-            real = shower.resolve(path, is_link)
+            real = shower.real(path, is_link)
             if folder == "records" and only_set is not None and real not in only_set:
                 continue
-            if not real.is_relative_to(root_real):
+            if not (real == root_real or real.startswith(root_real + os.sep)):
                 col.findings.append(
                     Finding(
                         "outside-source",
                         Severity.ERROR,
                         f"{path.name} is a link to {real}, outside the source folder;"
                         " records must live in the source folder",
-                        Span(shower.shown(path, is_link), 1, 1),
+                        Span(shower.shown(path, real), 1, 1),
                     )
                 )
                 failed.add(path.stem)
                 continue
-            src = _read(path, cwd, col, shower.shown(path, is_link), read)
+            src = _read(path, cwd, col, shower.shown(path, real), read)
             if src is None:
                 failed.add(path.stem)
                 continue
