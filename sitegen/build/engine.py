@@ -37,6 +37,7 @@ __all__ = ["MANIFEST", "build"]
 
 import contextlib
 import dataclasses
+import hashlib
 import json
 import math
 import os
@@ -1215,7 +1216,7 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
             for info in scoped.get("method", []):
                 found.extend(info.func(ctx, loaded, an))
             hit = (tuple(found), tuple(an.findings) if an is not None else (),
-                   key_of(dumps(an)))
+                   _value_digest(an))
             cache.put("checks", ck, hit)
         findings.extend(hit[0])
         by_method[mid], digests[mid] = hit[1], hit[2]
@@ -1231,6 +1232,61 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
             for f in findings
         ]
     return _Checked(sort_findings(set(findings)), by_method)
+
+
+def _value_digest(value: Any) -> str:
+    """A digest of a value that does not depend on how it was made: the
+    same analysis computed in a worker or here, in any process, gives the
+    same digest (a pickle would not: the order of a set of strings changes
+    with each process's hash seed, and shared references are kept)."""
+    h = hashlib.sha256()
+    _feed(h, value)
+    return h.hexdigest()
+
+
+def _feed(h: Any, x: Any) -> None:
+    import enum
+    from fractions import Fraction
+
+    if x is None or isinstance(x, bool | int | str):
+        h.update(f"{type(x).__name__}:{x!r};".encode())
+    elif isinstance(x, float):
+        h.update(f"f:{x!r};".encode())
+    elif isinstance(x, Fraction | enum.Enum):
+        h.update(f"{type(x).__name__}:{x!s};".encode())
+    elif isinstance(x, bytes):
+        h.update(b"b%d:" % len(x) + x)
+    elif isinstance(x, list | tuple):
+        h.update(f"[{len(x)}".encode())
+        for item in x:
+            _feed(h, item)
+        h.update(b"]")
+    elif isinstance(x, set | frozenset):
+        h.update(f"{{{len(x)}".encode())
+        for item in sorted(x, key=repr):
+            _feed(h, item)
+        h.update(b"}")
+    elif isinstance(x, dict):
+        h.update(f"<{len(x)}".encode())
+        for k in sorted(x, key=repr):
+            _feed(h, k)
+            _feed(h, x[k])
+        h.update(b">")
+    elif dataclasses.is_dataclass(x) and not isinstance(x, type):
+        h.update(f"{type(x).__qualname__}(".encode())
+        for f in dataclasses.fields(x):
+            h.update(f.name.encode() + b"=")
+            _feed(h, getattr(x, f.name))
+        h.update(b")")
+    elif hasattr(x, "tobytes") and hasattr(x, "dtype"):  # a numpy array or scalar
+        h.update(f"a:{x.dtype}:{getattr(x, 'shape', ())}:".encode())
+        h.update(x.tobytes())
+    elif callable(x):
+        # a compiled condition kept with the hazard summary: it is made from
+        # data already fed, and its code is in the code digest
+        h.update(f"fn:{getattr(x, '__qualname__', type(x).__name__)};".encode())
+    else:
+        h.update(f"{type(x).__qualname__}:{x!r};".encode())
 
 
 def _collection_rules(ctx: Any, rules: Sequence[Any], cache: Cache, rules_key: str,

@@ -364,3 +364,33 @@ def test_shared_pages_do_not_read_the_procedure(tmp_path: Path) -> None:
         p.write_text(text.replace("\nprocedure: |\n", "\nprocedure: |\n  0. Other words.\n"),
                      "utf-8")
     assert shared() == before
+
+
+def test_analysis_digests_do_not_depend_on_the_process() -> None:
+    # The collection-wide rules' kept findings are keyed by a digest of
+    # every analysis: the same record analysed in a worker, here, or read
+    # back from the cache (in processes with different hash seeds) must
+    # give the same digest, or every small edit re-runs those rules over
+    # the whole collection.
+    import subprocess
+    import sys
+
+    from conftest import ROOT
+
+    prog = (
+        "from pathlib import Path\n"
+        "from sitegen.analyse import analyse_method\n"
+        "from sitegen.build.cache import dumps, loads\n"
+        "from sitegen.build.engine import _value_digest\n"
+        "from sitegen.load.collection import load_collection\n"
+        f"col = load_collection(Path({str(ROOT / 'methods')!r}))\n"
+        "for mid, lo in col.methods.items():\n"
+        "    an = analyse_method(lo, col.reagents, col.indicators,\n"
+        "                        reference=col.site.record.reference_electrode)\n"
+        "    assert _value_digest(an) == _value_digest(loads(dumps(an))), mid\n"
+        "    print(mid, _value_digest(an))\n"
+    )
+    runs = [subprocess.run([sys.executable, "-c", prog], capture_output=True, text=True,
+                           check=True, env={**__import__("os").environ, "PYTHONHASHSEED": seed})
+            .stdout for seed in ("1", "2")]
+    assert runs[0] == runs[1] and len(runs[0].splitlines()) >= 10
