@@ -16,7 +16,7 @@ import urllib.error
 import urllib.request
 from pathlib import Path
 
-from conftest import EPOCH, ROOT
+from engine_helpers import EPOCH, ROOT
 
 from sitegen.serve import error_page, inject
 

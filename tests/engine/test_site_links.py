@@ -5,9 +5,8 @@ from __future__ import annotations
 
 __all__: list[str] = []
 
-from pathlib import Path
-
 from html.parser import HTMLParser
+from pathlib import Path
 
 from sitegen.render.links import check_links, check_summaries, page_links
 
@@ -88,7 +87,7 @@ def test_page_links_read_what_pythons_html_parser_reads(built_demo: Path) -> Non
 
 
 def test_a_page_is_checked_again_when_its_target_loses_an_id(site: Path) -> None:
-    from conftest import do_build
+    from engine_helpers import do_build
 
     base = site / "theme/templates/base.html"
     text = base.read_text("utf-8")

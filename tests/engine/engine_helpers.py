@@ -1,4 +1,6 @@
-"""Shared set-up for the build tests: small copies of the demo collection.
+"""Helpers of the engine tests: small copies of the demo collection,
+file digests and build runners (a module of its own: a `conftest` name
+is shared by every test folder).
 
 A cold build of the demo takes seconds (every curve is plotted), so one
 cold build is made per session and each test starts from a copy of its
@@ -9,18 +11,16 @@ findings) match the session build's.
 
 from __future__ import annotations
 
-__all__: list[str] = []
+__all__ = ["DEMO", "EPOCH", "KEEP", "ROOT", "THEME", "contents", "copy_demo", "do_build",
+           "run_cli", "tree_hashes"]
 
 import hashlib
 import os
 import shutil
 import subprocess
 import sys
-from collections.abc import Iterator
 from pathlib import Path
 from typing import Any
-
-import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "methods"
@@ -92,30 +92,3 @@ def do_build(**kw: Any) -> Any:
     kw.setdefault("jobs", 2)
     kw.setdefault("theme", Path("theme"))
     return build(Path("methods"), Path("out"), settings=Settings(today=build_date()), **kw)
-
-
-@pytest.fixture(scope="session")
-def built_demo(tmp_path_factory: pytest.TempPathFactory) -> Path:
-    """A folder with ``methods/`` (the demo), ``theme/``, and ``out/`` and
-    ``cache/`` from one cold build."""
-    base = tmp_path_factory.mktemp("demo")
-    copy_demo(base)
-    mp = pytest.MonkeyPatch()
-    mp.setenv("SOURCE_DATE_EPOCH", EPOCH)
-    mp.chdir(base)
-    try:
-        report = do_build()
-    finally:
-        mp.undo()
-    assert report.written, [str(f) for f in report.check.errors]
-    return base
-
-
-@pytest.fixture
-def site(built_demo: Path, tmp_path: Path, monkeypatch: pytest.MonkeyPatch) -> Iterator[Path]:
-    """A private copy of the built demo, as the current folder."""
-    work = tmp_path / "work"
-    shutil.copytree(built_demo, work, symlinks=True)
-    monkeypatch.chdir(work)
-    monkeypatch.setenv("SOURCE_DATE_EPOCH", EPOCH)
-    yield work

@@ -13,7 +13,7 @@ import time
 from pathlib import Path
 
 import pytest
-from conftest import EPOCH, ROOT, contents, copy_demo, run_cli, tree_hashes
+from engine_helpers import EPOCH, ROOT, contents, copy_demo, run_cli, tree_hashes
 
 
 def _start_build(cwd: Path, env: dict[str, str]) -> subprocess.Popen[bytes]:

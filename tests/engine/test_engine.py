@@ -10,7 +10,7 @@ import shutil
 from pathlib import Path
 
 import pytest
-from conftest import contents, do_build, run_cli, tree_hashes
+from engine_helpers import contents, do_build, run_cli, tree_hashes
 
 from sitegen.build.engine import MANIFEST
 
@@ -122,7 +122,7 @@ def test_changed_template_rebuilds_every_page(site: Path) -> None:
 
 def test_jobs_do_not_change_the_output(built_demo: Path, tmp_path: Path,
                                        monkeypatch: pytest.MonkeyPatch) -> None:
-    from conftest import EPOCH
+    from engine_helpers import EPOCH
 
     monkeypatch.setenv("SOURCE_DATE_EPOCH", EPOCH)
     sites = {}
@@ -340,13 +340,13 @@ def test_shared_pages_do_not_read_the_procedure(tmp_path: Path) -> None:
     # What the engine's facts digest leaves out (its _OWN_ONLY fields) must
     # not reach any shared page: give every demo method another procedure
     # and compare the shared pages, search index aside.
+    from engine_helpers import DEMO, THEME
+
     from sitegen.build.engine import _OWN_ONLY
     from sitegen.build.run import analyse_all
     from sitegen.clock import build_date
     from sitegen.load.collection import load_collection
     from sitegen.render.site import RenderOptions, render_shared
-
-    from conftest import DEMO, THEME
 
     assert _OWN_ONLY == {"procedure"}
     src = tmp_path / "m"
@@ -375,7 +375,7 @@ def test_analysis_digests_do_not_depend_on_the_process() -> None:
     import subprocess
     import sys
 
-    from conftest import ROOT
+    from engine_helpers import ROOT
 
     prog = (
         "from pathlib import Path\n"
