@@ -91,7 +91,8 @@ def test_results_kept_between_processes_need_no_pint_and_agree(tmp_path):
         "    u.parse_measure('25 furlongs', 'volume'); bad = 'read'\n"
         "except u.UnitError as e:\n"
         "    bad = str(e)\n"
-        "print(pickle.dumps((got, bad, u.convert(12.5, '%', 'mg/g'), 'pint' in sys.modules)).hex())\n"
+        "conv = u.convert(12.5, '%', 'mg/g')\n"
+        "print(pickle.dumps((got, bad, conv, 'pint' in sys.modules)).hex())\n"
     )
     out = subprocess.run([sys.executable, "-c", prog, str(kept)], capture_output=True,
                          text=True, check=True)
