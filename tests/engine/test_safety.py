@@ -10,6 +10,7 @@ import signal
 import subprocess
 import sys
 import time
+from collections.abc import Callable
 from pathlib import Path
 
 import pytest
@@ -28,6 +29,25 @@ def _start_build(cwd: Path, env: dict[str, str]) -> subprocess.Popen[bytes]:
     )
 
 
+def _kill_once(proc: subprocess.Popen[bytes], writing: Callable[[], bool],
+               settle: float) -> None:
+    """SIGKILL ``proc`` ``settle`` seconds after ``writing()`` first holds
+    (the build has started writing), failing if it never does or the
+    build ends first."""
+    try:
+        deadline = time.monotonic() + 60
+        while time.monotonic() < deadline and proc.poll() is None and not writing():
+            time.sleep(0.02)
+        assert writing(), "the build never started writing"
+        time.sleep(settle)  # a few more files
+        assert proc.poll() is None, "the build finished before it could be killed"
+        proc.send_signal(signal.SIGKILL)
+        proc.wait(timeout=10)
+    finally:
+        if proc.poll() is None:
+            proc.kill()
+
+
 def test_killed_while_writing_leaves_the_previous_site(site: Path) -> None:
     before = tree_hashes(site / "out")
     # a change, so that the build has to write
@@ -36,22 +56,7 @@ def test_killed_while_writing_leaves_the_previous_site(site: Path) -> None:
                                                   "\nprocedure: |\n  0. Wear gloves.\n"), "utf-8")
     proc = _start_build(site, {"SITEGEN_TEST_WRITE_DELAY": "0.05",
                                "SITEGEN_CACHE": str(site / "cache")})
-    try:
-        deadline = time.monotonic() + 60
-        staged: list[Path] = []
-        while time.monotonic() < deadline and proc.poll() is None:
-            staged = [p for p in site.glob(".out.s*") if any(p.rglob("*.html"))]
-            if staged:
-                break
-            time.sleep(0.02)
-        assert staged, "the build never started writing"
-        time.sleep(0.2)  # a few more files
-        assert proc.poll() is None, "the build finished before it could be killed"
-        proc.send_signal(signal.SIGKILL)
-        proc.wait(timeout=10)
-    finally:
-        if proc.poll() is None:
-            proc.kill()
+    _kill_once(proc, lambda: any(any(p.rglob("*.html")) for p in site.glob(".out.s*")), 0.2)
     assert tree_hashes(site / "out") == before
     # and the next build publishes the change
     done = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site,
@@ -78,20 +83,7 @@ def test_a_spare_left_half_changed_by_a_kill_is_never_trusted(site: Path,
     base = site / "theme/templates/base.html"
     base.write_text(base.read_text("utf-8") + "<!-- v2 -->\n", "utf-8")
     proc = _start_build(site, {**env, "SITEGEN_TEST_WRITE_DELAY": "0.05"})
-    try:
-        deadline = time.monotonic() + 60
-        while time.monotonic() < deadline and proc.poll() is None:
-            if (spare / ".sitegen-staging").exists():
-                break
-            time.sleep(0.02)
-        assert (spare / ".sitegen-staging").exists(), "the build never started writing"
-        time.sleep(0.3)
-        assert proc.poll() is None, "the build finished before it could be killed"
-        proc.send_signal(signal.SIGKILL)
-        proc.wait(timeout=10)
-    finally:
-        if proc.poll() is None:
-            proc.kill()
+    _kill_once(proc, lambda: (spare / ".sitegen-staging").exists(), 0.3)
     assert tree_hashes(site / "out") == before
     done = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site, env=env)
     assert done.returncode == 0, done.stderr
