@@ -723,7 +723,8 @@ def _method_head(
         "record_footer": {
             "revision": rec.revision,
             "fingerprint": loaded.source.fingerprint,
-            "source": loaded.source.path,
+            # the file within the source folder, wherever the build ran from
+            "source": "records/" + loaded.source.path.replace("\\", "/").rsplit("/", 1)[-1],
         },
     }
 

@@ -394,3 +394,24 @@ def test_analysis_digests_do_not_depend_on_the_process() -> None:
                            check=True, env={**__import__("os").environ, "PYTHONHASHSEED": seed})
             .stdout for seed in ("1", "2")]
     assert runs[0] == runs[1] and len(runs[0].splitlines()) >= 10
+
+
+def test_the_output_does_not_depend_on_where_the_build_runs(site: Path, tmp_path: Path) -> None:
+    # The same sources built from their parent folder (so every path in a
+    # finding reads differently) give the same bytes.
+    import os
+
+    from sitegen.build.engine import build
+    from sitegen.check.registry import Settings
+    from sitegen.clock import build_date
+
+    old = Path.cwd()
+    os.chdir(site.parent)
+    try:
+        report = build(site.name / Path("methods"), tmp_path / "elsewhere",
+                       settings=Settings(today=build_date()), cache_dir=tmp_path / "cache",
+                       theme=site.name / Path("theme"), jobs=2)
+    finally:
+        os.chdir(old)
+    assert report.written
+    assert contents(tmp_path / "elsewhere") == contents(site / "out")
