@@ -314,6 +314,10 @@ def serve(args: Any, out: TextIO, err: TextIO) -> int:
             if not changes:
                 if warm:
                     _warm_up(theme)
+                    _settle_heap()  # what the warm-up loaded stays too
+                    from .build.write import prepare_spare
+
+                    prepare_spare(Path(args.out))
                     warm = False
                 continue
             if not _build_once(args, state, err):

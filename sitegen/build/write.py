@@ -8,7 +8,14 @@ output folders from a user's folder, which is never deleted.
 
 from __future__ import annotations
 
-__all__ = ["MARKER", "OutputRefused", "check_output_dir", "spare_dir", "write_site"]
+__all__ = [
+    "MARKER",
+    "OutputRefused",
+    "check_output_dir",
+    "prepare_spare",
+    "spare_dir",
+    "write_site",
+]
 
 import ctypes
 import ctypes.util
@@ -109,6 +116,33 @@ def spare_dir(out: Path) -> Path:
     (see :func:`write_site`)."""
     out = out.resolve()
     return out.parent / f".{out.name}.spare"
+
+
+def prepare_spare(out: Path) -> bool:
+    """Make the spare folder now, as hard links to the current site, if
+    there is none: the next build then replaces only the files that differ
+    instead of staging every file (a long-lived caller does this while
+    idle). Safe because no build ever writes into a file in place. True if
+    a spare was made."""
+    out = out.resolve()
+    spare = spare_dir(out)
+    if os.path.lexists(spare) or not (out / MARKER).is_file():
+        return False
+    tmp = out.parent / f".{out.name}.spare-{os.getpid()}"
+    if tmp.exists():
+        shutil.rmtree(tmp)
+    root, dest = os.fspath(out), os.fspath(tmp)
+    try:
+        for folder, _dirs, names in os.walk(root):
+            target = os.path.join(dest, os.path.relpath(folder, root))
+            os.makedirs(target, exist_ok=True)
+            for name in names:
+                os.link(os.path.join(folder, name), os.path.join(target, name))
+        os.replace(tmp, spare)
+    except OSError:
+        shutil.rmtree(tmp, ignore_errors=True)
+        return False
+    return True
 
 
 def _usable_spare(spare: Path) -> bool:

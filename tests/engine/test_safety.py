@@ -181,3 +181,36 @@ def test_no_change_rebuild_does_not_import_the_heavy_libraries(site: Path) -> No
                        capture_output=True, timeout=60)
     assert r.returncode == 0, r.stderr
     assert r.stdout.strip() == ""
+
+
+def test_a_prepared_spare_is_used_and_the_site_stays_right(site: Path, tmp_path: Path) -> None:
+    # sitegen serve makes the spare while idle (hard links to the current
+    # site); the next build must replace only what changed and publish
+    # what a build from nothing publishes.
+    from sitegen.build.write import prepare_spare, spare_dir
+
+    from engine_helpers import do_build
+
+    assert not spare_dir(site / "out").exists()
+    assert prepare_spare(site / "out")
+    assert not prepare_spare(site / "out")  # there is one already
+    spare = spare_dir(site / "out")
+    assert contents(spare) == contents(site / "out")
+    csv = sorted(spare.rglob("curve.csv"))[0].relative_to(spare)
+    inode = (spare / csv).stat().st_ino
+    rec = site / "methods/records/copper-iodometric.yaml"
+    rec.write_text(rec.read_text("utf-8").replace("\nprocedure: |\n",
+                                                  "\nprocedure: |\n  0. Label the flask.\n"), "utf-8")
+    assert do_build().written
+    assert (site / "out" / csv).stat().st_ino == inode  # kept, not copied
+    fresh = tmp_path / "fresh"
+    copy_demo(fresh)
+    import shutil
+
+    for sub in ("methods", "theme"):
+        shutil.rmtree(fresh / sub)
+        shutil.copytree(site / sub, fresh / sub)
+    cold = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
+                   env={"SITEGEN_CACHE": str(fresh / "cache")})
+    assert cold.returncode == 0, cold.stderr
+    assert contents(site / "out") == contents(fresh / "out")
