@@ -1237,56 +1237,49 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
 def _value_digest(value: Any) -> str:
     """A digest of a value that does not depend on how it was made: the
     same analysis computed in a worker or here, in any process, gives the
-    same digest (a pickle would not: the order of a set of strings changes
-    with each process's hash seed, and shared references are kept)."""
-    h = hashlib.sha256()
-    _feed(h, value)
-    return h.hexdigest()
+    same digest (a pickle would not: its bytes changed after a round trip
+    for most demo analyses, as shared references are kept)."""
+    parts: list[bytes] = []
+    _feed(parts, value)
+    return hashlib.sha256(b"".join(parts)).hexdigest()
 
 
-def _feed(h: Any, x: Any) -> None:
-    import enum
-    from fractions import Fraction
-
-    if x is None or isinstance(x, bool | int | str):
-        h.update(f"{type(x).__name__}:{x!r};".encode())
-    elif isinstance(x, float):
-        h.update(f"f:{x!r};".encode())
-    elif isinstance(x, Fraction | enum.Enum):
-        h.update(f"{type(x).__name__}:{x!s};".encode())
-    elif isinstance(x, bytes):
-        h.update(b"b%d:" % len(x) + x)
-    elif isinstance(x, list | tuple):
-        h.update(f"[{len(x)}".encode())
+def _feed(out: list[bytes], x: Any) -> None:
+    t = type(x)
+    if t is float or t is int or t is str or t is bool or x is None:
+        out.append(f"{t.__name__}:{x!r};".encode())
+    elif t is tuple or t is list:
+        out.append(b"[%d" % len(x))
         for item in x:
-            _feed(h, item)
-        h.update(b"]")
-    elif isinstance(x, set | frozenset):
-        h.update(f"{{{len(x)}".encode())
-        for item in sorted(x, key=repr):
-            _feed(h, item)
-        h.update(b"}")
-    elif isinstance(x, dict):
-        h.update(f"<{len(x)}".encode())
+            _feed(out, item)
+        out.append(b"]")
+    elif t is dict:
+        out.append(b"<%d" % len(x))
         for k in sorted(x, key=repr):
-            _feed(h, k)
-            _feed(h, x[k])
-        h.update(b">")
-    elif dataclasses.is_dataclass(x) and not isinstance(x, type):
-        h.update(f"{type(x).__qualname__}(".encode())
-        for f in dataclasses.fields(x):
-            h.update(f.name.encode() + b"=")
-            _feed(h, getattr(x, f.name))
-        h.update(b")")
+            _feed(out, k)
+            _feed(out, x[k])
+        out.append(b">")
+    elif t is set or t is frozenset:
+        out.append(b"{%d" % len(x))
+        for item in sorted(x, key=repr):
+            _feed(out, item)
+        out.append(b"}")
+    elif t is bytes:
+        out.append(b"b%d:" % len(x) + x)
+    elif hasattr(t, "__dataclass_fields__"):
+        out.append(t.__qualname__.encode() + b"(")
+        for name in t.__dataclass_fields__:
+            out.append(name.encode() + b"=")
+            _feed(out, getattr(x, name))
+        out.append(b")")
     elif hasattr(x, "tobytes") and hasattr(x, "dtype"):  # a numpy array or scalar
-        h.update(f"a:{x.dtype}:{getattr(x, 'shape', ())}:".encode())
-        h.update(x.tobytes())
-    elif callable(x):
-        # a compiled condition kept with the hazard summary: it is made from
-        # data already fed, and its code is in the code digest
-        h.update(f"fn:{getattr(x, '__qualname__', type(x).__name__)};".encode())
-    else:
-        h.update(f"{type(x).__qualname__}:{x!r};".encode())
+        out.append(f"a:{x.dtype}:{getattr(x, 'shape', ())}:".encode() + x.tobytes())
+    elif callable(x) and not isinstance(x, type):
+        # a compiled condition kept with the hazard summary: made from data
+        # fed already, and its code is in the code digest
+        out.append(f"fn:{getattr(x, '__qualname__', t.__name__)};".encode())
+    else:  # enums, fractions and other plain values: their repr says it all
+        out.append(f"{t.__qualname__}:{x!r};".encode())
 
 
 def _collection_rules(ctx: Any, rules: Sequence[Any], cache: Cache, rules_key: str,
