@@ -191,6 +191,15 @@ def _manifest_bytes(manifest: Mapping[str, tuple[str, int]], digest: str) -> byt
             .replace('],"', '],\n"') + "\n").encode("utf-8")
 
 
+def _size_is(root: Path, rel: str, size: Any) -> bool:
+    """Whether ``root/rel`` exists with ``size`` bytes (a cheap guard against
+    a file changed or truncated by hand since its manifest was written)."""
+    try:
+        return os.stat(os.path.join(root, rel)).st_size == size
+    except OSError:
+        return False
+
+
 class _Reuse(Mapping[str, str]):
     """Path -> the current output's file holding exactly the new bytes
     (its manifest entry and size agree), looked up only for the files the
@@ -897,11 +906,13 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
     # the spare folder holds the site before the current one: the files it
     # holds with the new bytes stay, the others are replaced (write_site
     # discards a spare that a killed build left half-changed)
-    spare = _read_manifest(spare_dir(out)) or {}
+    spare_root = spare_dir(out)
+    spare = _read_manifest(spare_root) or {}
     spare_files = spare.get("files")
     holds = (
         {rel for rel, entry in spare_files.items()
-         if isinstance(entry, list) and tuple(entry) == manifest.get(rel)}
+         if isinstance(entry, list) and tuple(entry) == manifest.get(rel)
+         and _size_is(spare_root, rel, entry[1])}
         if isinstance(spare_files, dict) else set()
     )
     files = dict(manifest)
