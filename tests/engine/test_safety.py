@@ -29,6 +29,20 @@ def _start_build(cwd: Path, env: dict[str, str]) -> subprocess.Popen[bytes]:
     )
 
 
+def _built_from_nothing(site: Path, fresh: Path) -> Path:
+    """``fresh`` holding the sources of ``site`` built by a new process
+    into ``fresh/out`` with an empty cache."""
+    import shutil
+
+    shutil.rmtree(fresh, ignore_errors=True)
+    for sub in ("methods", "theme"):
+        shutil.copytree(site / sub, fresh / sub)
+    cold = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
+                   env={"SITEGEN_CACHE": str(fresh / "cache")})
+    assert cold.returncode == 0, cold.stderr
+    return fresh
+
+
 def _kill_once(proc: subprocess.Popen[bytes], writing: Callable[[], bool],
                settle: float) -> None:
     """SIGKILL ``proc`` ``settle`` seconds after ``writing()`` first holds
@@ -87,16 +101,7 @@ def test_a_spare_left_half_changed_by_a_kill_is_never_trusted(site: Path,
     assert tree_hashes(site / "out") == before
     done = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=site, env=env)
     assert done.returncode == 0, done.stderr
-    fresh = tmp_path / "fresh"
-    copy_demo(fresh)
-    for sub in ("methods", "theme"):
-        import shutil
-
-        shutil.rmtree(fresh / sub)
-        shutil.copytree(site / sub, fresh / sub)
-    cold = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
-                   env={"SITEGEN_CACHE": str(fresh / "cache")})
-    assert cold.returncode == 0, cold.stderr
+    fresh = _built_from_nothing(site, tmp_path / "fresh")
     assert contents(site / "out") == contents(fresh / "out")
     assert not (site / "out" / ".sitegen-staging").exists()
     # and a spare in good order is reused: only what changed is rewritten,
@@ -187,9 +192,9 @@ def test_a_prepared_spare_is_used_and_the_site_stays_right(site: Path, tmp_path:
     # sitegen serve makes the spare while idle (hard links to the current
     # site); the next build must replace only what changed and publish
     # what a build from nothing publishes.
-    from sitegen.build.write import prepare_spare, spare_dir
-
     from engine_helpers import do_build
+
+    from sitegen.build.write import prepare_spare, spare_dir
 
     assert not spare_dir(site / "out").exists()
     assert prepare_spare(site / "out")
@@ -199,18 +204,9 @@ def test_a_prepared_spare_is_used_and_the_site_stays_right(site: Path, tmp_path:
     csv = sorted(spare.rglob("curve.csv"))[0].relative_to(spare)
     inode = (spare / csv).stat().st_ino
     rec = site / "methods/records/copper-iodometric.yaml"
-    rec.write_text(rec.read_text("utf-8").replace("\nprocedure: |\n",
-                                                  "\nprocedure: |\n  0. Label the flask.\n"), "utf-8")
+    text = rec.read_text("utf-8")
+    rec.write_text(text.replace("\nprocedure: |\n", "\nprocedure: |\n  0. Label the flask.\n"),
+                   "utf-8")
     assert do_build().written
     assert (site / "out" / csv).stat().st_ino == inode  # kept, not copied
-    fresh = tmp_path / "fresh"
-    copy_demo(fresh)
-    import shutil
-
-    for sub in ("methods", "theme"):
-        shutil.rmtree(fresh / sub)
-        shutil.copytree(site / sub, fresh / sub)
-    cold = run_cli("build", "methods", "--out", "out", "--theme", "theme", cwd=fresh,
-                   env={"SITEGEN_CACHE": str(fresh / "cache")})
-    assert cold.returncode == 0, cold.stderr
-    assert contents(site / "out") == contents(fresh / "out")
+    assert contents(site / "out") == contents(_built_from_nothing(site, tmp_path / "fresh") / "out")
