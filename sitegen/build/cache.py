@@ -29,6 +29,7 @@ from __future__ import annotations
 __all__ = [
     "FORMAT",
     "Cache",
+    "by_signature",
     "code_digest",
     "default_cache_dir",
     "digest_bytes",
@@ -49,6 +50,7 @@ import pickle
 import tempfile
 import time
 import types
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any
 
@@ -165,25 +167,36 @@ def file_signature(st: os.stat_result) -> tuple[int, int, int, int] | None:
     return (st.st_size, st.st_mtime_ns, st.st_ctime_ns, st.st_ino)
 
 
+def by_signature(known: dict[str, tuple[Any, Any]] | None, key: str, path: str | Path,
+                 compute: Callable[[], Any], keep: Callable[[Any], bool] = bool) -> Any:
+    """``compute()``, or what it gave for ``key`` when ``path``'s metadata
+    has not changed since (:func:`file_signature`). ``known``: a dict kept
+    by a long-lived process (None: always compute); ``keep``: which results
+    may be kept."""
+    if known is None:
+        return compute()
+    try:
+        sig = file_signature(os.stat(path))
+    except OSError:
+        sig = None
+    hit = known.get(key)
+    if sig is not None and hit is not None and hit[0] == sig:
+        return hit[1]
+    value = compute()
+    if sig is not None and keep(value):
+        known[key] = (sig, value)
+    return value
+
+
 def file_digest(path: str, known: dict[str, tuple[Any, Any]] | None = None) -> tuple[int, str]:
-    """(size, sha256) of a file. ``known``: a dict kept by a long-lived
-    process; a file whose metadata has not changed since it was last read
-    (:func:`file_signature`) is not read again."""
-    if known is not None:
-        st = os.stat(path)
-        sig = file_signature(st)
-        hit = known.get(path)
-        if sig is not None and hit is not None and hit[0] == sig:
-            return hit[1]
+    """(size, sha256) of a file; ``known``: see :func:`by_signature`."""
+
+    def compute() -> tuple[int, str]:
         with open(path, "rb") as fh:
             data = fh.read()
-        value = (len(data), digest_bytes(data))
-        if sig is not None:
-            known[path] = (sig, value)
-        return value
-    with open(path, "rb") as fh:
-        data = fh.read()
-    return len(data), digest_bytes(data)
+        return len(data), digest_bytes(data)
+
+    return by_signature(known, path, path, compute)  # type: ignore[no-any-return]
 
 
 @functools.cache
@@ -259,11 +272,10 @@ class Cache:
     def has(self, kind: str, key: str) -> bool:
         """Whether an entry is stored (not read: :meth:`get` may still find
         it damaged)."""
-        if self.memo is not None and (kind, key) in self.memo:
-            self.used.add((kind, key))
-            return True
         if self.memo is not None:
             self.used.add((kind, key))
+            if (kind, key) in self.memo:
+                return True
         return os.path.isfile(self._entry(kind, key))
 
     def put(self, kind: str, key: str, value: Any) -> None:

@@ -765,23 +765,14 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
 def _reader(known: dict[str, tuple[Any, Any]]) -> Any:
     """:func:`sitegen.load.source.read_source` for a long-lived process: a
     file whose metadata has not changed since it was last read is not read
-    again (:func:`sitegen.build.cache.file_signature`)."""
-    from ..build.cache import file_signature
+    again (:func:`sitegen.build.cache.by_signature`)."""
+    from ..build.cache import by_signature
     from ..load.source import Source, read_source
 
     def read(path: Path, shown: str) -> Any:
-        k = "source\0" + os.fspath(path) + "\0" + shown
-        try:
-            sig = file_signature(os.stat(path))
-        except OSError:
-            sig = None
-        hit = known.get(k)
-        if sig is not None and hit is not None and hit[0] == sig:
-            return hit[1]
-        src = read_source(path, shown)
-        if sig is not None and isinstance(src, Source):
-            known[k] = (sig, src)
-        return src
+        return by_signature(known, "source\0" + os.fspath(path) + "\0" + shown, path,
+                            lambda: read_source(path, shown),
+                            keep=lambda src: isinstance(src, Source))
 
     return read
 
@@ -907,19 +898,19 @@ def _publish(out: Path, cache: Cache, shared: Mapping[str, bytes],
     # holds with the new bytes stay, the others are replaced (write_site
     # discards a spare that a killed build left half-changed)
     spare_root = spare_dir(out)
-    spare = _read_manifest(spare_root) or {}
-    spare_files = spare.get("files")
-    holds = (
-        {rel for rel, entry in spare_files.items()
-         if isinstance(entry, list) and tuple(entry) == manifest.get(rel)
-         and _size_is(spare_root, rel, entry[1])}
-        if isinstance(spare_files, dict) else set()
-    )
+    listed = (_read_manifest(spare_root) or {}).get("files")
+    spare: dict[str, bool] = {}
+    if isinstance(listed, dict):
+        spare = {
+            rel: isinstance(entry, list) and tuple(entry) == manifest.get(rel)
+            and _size_is(spare_root, rel, entry[1])
+            for rel, entry in listed.items()
+        }
+        spare[MANIFEST] = False
     files = dict(manifest)
     files[MANIFEST] = (digest_bytes(b""), 0)  # placeholder, replaced below
     lazy = _LazyFiles(cache, {**shared, MANIFEST: _manifest_bytes(manifest, digest)}, files)
-    write_site(out, lazy, reuse=reuse, spare_holds=holds,
-               spare_lists=[*spare_files, MANIFEST] if isinstance(spare_files, dict) else None)
+    write_site(out, lazy, reuse=reuse, spare=spare)
     return True
 
 
@@ -1188,21 +1179,13 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
     whether they exist; the settings and the rule set), and the
     collection-wide rules' findings kept by every method's facts digest,
     every analysis' digest and every reagent and indicator record."""
-    from dataclasses import replace
-
-    from ..check import rules as _rules  # noqa: F401  (registers the rules)
-    from ..check.registry import RULES, Context
+    from ..check.registry import Context
+    from ..check.run import as_strict, rules_by_scope
     from ..errors import sort_findings
+    from .run import site_settings
 
-    if collection.site is not None:
-        settings = replace(settings, burette_band=tuple(collection.site.record.burette_band))
-    ids = list(RULES) if enabled is None else list(enabled)
-    unknown = [i for i in ids if i not in RULES]
-    if unknown:
-        raise KeyError(f"unknown rule id(s) {', '.join(unknown)}; known: {', '.join(RULES)}")
-    scoped: dict[str, list[Any]] = {}
-    for rid in ids:
-        scoped.setdefault(RULES[rid].scope, []).append(RULES[rid])
+    settings = site_settings(collection, settings)
+    ids, scoped = rules_by_scope(enabled)
     ctx = Context(collection=collection, analyses=analyses, settings=settings)
     site = collection.site.source if collection.site is not None else None
     sr = collection.safety_rules_source
@@ -1237,12 +1220,7 @@ def _check_stage(collection: Any, analyses: Mapping[str, Any], settings: Setting
                 findings.extend(info.func(ctx, loaded))
     if scoped.get("collection"):
         findings.extend(_collection_rules(ctx, scoped["collection"], cache, rules_key, digests))
-    if settings.strict:
-        findings = [
-            Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f
-            for f in findings
-        ]
-    return _Checked(sort_findings(set(findings)), by_method)
+    return _Checked(sort_findings(set(as_strict(findings, settings))), by_method)
 
 
 def _value_digest(value: Any) -> str:

@@ -81,6 +81,16 @@ def analyse_all(collection: Collection) -> dict[str, Any]:
     }
 
 
+def site_settings(collection: Collection, settings: Settings) -> Settings:
+    """``settings`` with what the collection's site.yaml sets (the burette
+    band)."""
+    from dataclasses import replace
+
+    if collection.site is None:
+        return settings
+    return replace(settings, burette_band=tuple(collection.site.record.burette_band))
+
+
 def run_checks(
     collection: Collection,
     analyses: dict[str, Any],
@@ -88,20 +98,12 @@ def run_checks(
     enabled: Iterable[str] | None = None,
 ) -> list[Finding]:
     """Loader findings plus every enabled rule's findings, sorted."""
-    from dataclasses import replace
+    from ..check.run import as_strict, run_rules
 
-    from ..check.run import run_rules
-
-    if collection.site is not None:
-        settings = replace(settings, burette_band=tuple(collection.site.record.burette_band))
+    settings = site_settings(collection, settings)
     findings = list(collection.findings)
     findings.extend(run_rules(collection, analyses, settings, enabled))
-    if settings.strict:
-        findings = [
-            Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f
-            for f in findings
-        ]
-    return sort_findings(set(findings))
+    return sort_findings(set(as_strict(findings, settings)))
 
 
 def check_collection(

@@ -154,8 +154,7 @@ def write_site(
     out: Path,
     files: Mapping[str, bytes],
     reuse: Mapping[str, str | Path] | None = None,
-    spare_holds: Collection[str] | None = None,
-    spare_lists: Collection[str] | None = None,
+    spare: Mapping[str, bool] | None = None,
 ) -> None:
     """Stage ``files`` beside ``out`` and swap the staged folder in.
 
@@ -169,17 +168,14 @@ def write_site(
             folder instead of written (the previous site is never changed
             in place, so sharing its inodes is safe). Falls back to
             writing when the link fails.
-        spare_holds: when given, the site is staged in the spare folder
+        spare: when given, the site is staged in the spare folder
             (:func:`spare_dir`: the site before the current one, kept by
-            the last build) and these paths are the files the spare already
-            holds with exactly the new bytes; only the others are removed
-            or written. After the swap the spare holds the site that was
-            current, for the next build. Without it (or without a usable
-            spare) the site is staged from nothing and the previous site
-            deleted.
-        spare_lists: every file the spare holds, as the build that wrote
-            it listed them; when given, only those that are not kept are
-            removed (no walk over the spare's folders).
+            the last build); it maps every file the spare holds, as the
+            build that wrote it listed them, to whether it already holds
+            exactly the new bytes. Only the others are removed or written.
+            After the swap the spare holds the site that was current, for
+            the next build. Without it (or without a usable spare) the site
+            is staged from nothing and the previous site deleted.
 
     A spare is marked while it is changed, so one that a killed build left
     half-changed is never trusted again; the published folder is only ever
@@ -188,28 +184,30 @@ def write_site(
     out = out.resolve()
     parent = out.parent
     parent.mkdir(parents=True, exist_ok=True)
-    spare = spare_dir(out)
+    spare_holds = {rel for rel, same in spare.items() if same} if spare is not None else None
+    spare_files = set(spare) if spare is not None else set()
+    spare_root = spare_dir(out)
     old = parent / f".{out.name}.old-{os.getpid()}"
     if old.exists():
         shutil.rmtree(old)
     staging = parent / f".{out.name}.staging-{os.getpid()}"
     keep: Collection[str] = ()
     if spare_holds is not None:
-        if not os.path.lexists(spare):
-            staging = spare
+        if not os.path.lexists(spare_root):
+            staging = spare_root
         elif (
-            not os.path.islink(spare)
-            and spare.is_dir()
-            and ((spare / MARKER).is_file() or not any(spare.iterdir()))
+            not os.path.islink(spare_root)
+            and spare_root.is_dir()
+            and ((spare_root / MARKER).is_file() or not any(spare_root.iterdir()))
         ):
-            staging = spare
-            if _usable_spare(spare):
+            staging = spare_root
+            if _usable_spare(spare_root):
                 keep = spare_holds
             else:
-                shutil.rmtree(spare)  # ours, but half-changed (or empty)
+                shutil.rmtree(spare_root)  # ours, but half-changed (or empty)
         else:
             spare_holds = None  # not written by us: leave it alone
-    if staging != spare and staging.exists():
+    if staging != spare_root and staging.exists():
         shutil.rmtree(staging)
     try:
         written: list[str] = []
@@ -217,10 +215,7 @@ def write_site(
         if keep:
             _write_file(staging / _DIRTY, b"")
             _fsync_path(root)
-            if spare_lists is not None:
-                _remove_listed(root, set(spare_lists) - (set(keep) & set(files)))
-            else:
-                _prune(root, set(files), set(keep))
+            _remove_listed(root, spare_files - (set(keep) & set(files)))
         else:
             staging.mkdir()
             _write_file(staging / _DIRTY, b"")
@@ -263,13 +258,13 @@ def write_site(
         if out.exists():
             if _exchange(staging, out):
                 # staging now holds the previous site
-                if staging != spare:
+                if staging != spare_root:
                     os.replace(staging, old)
             else:
                 os.replace(out, old)
                 os.replace(staging, out)
                 if spare_holds is not None:
-                    os.replace(old, spare)
+                    os.replace(old, spare_root)
         else:
             os.replace(staging, out)
     except BaseException:
@@ -280,28 +275,9 @@ def write_site(
         raise
     if old.exists():
         shutil.rmtree(old, ignore_errors=True)
-    if spare_holds is not None and spare.is_dir() and not (spare / MARKER).is_file():
+    if spare_holds is not None and spare_root.is_dir() and not (spare_root / MARKER).is_file():
         # the folder that was current held no site yet (at most .gitkeep)
-        shutil.rmtree(spare, ignore_errors=True)
-
-
-def _prune(root: str, wanted: set[str], keep: set[str]) -> None:
-    """Delete every file under ``root`` that is not both wanted and kept
-    (the marker and the staging mark stay), then the folders left empty."""
-    for folder, dirs, names in os.walk(root, topdown=False):
-        rel_dir = os.path.relpath(folder, root).replace(os.sep, "/")
-        for name in names:
-            rel = name if rel_dir == "." else f"{rel_dir}/{name}"
-            if rel in (MARKER, _DIRTY):
-                continue
-            if rel not in keep or rel not in wanted:
-                os.unlink(os.path.join(folder, name))
-        for d in dirs:
-            path = os.path.join(folder, d)
-            if os.path.islink(path):
-                os.unlink(path)
-            elif not os.listdir(path):
-                os.rmdir(path)
+        shutil.rmtree(spare_root, ignore_errors=True)
 
 
 def _remove_listed(root: str, rels: Collection[str]) -> None:

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-__all__ = ["run_rules"]
+__all__ = ["as_strict", "rules_by_scope", "run_rules"]
 
 from collections.abc import Iterable, Mapping
 from typing import Any
@@ -10,6 +10,34 @@ from typing import Any
 from ..errors import Finding, Severity, sort_findings
 from . import rules as _rules  # noqa: F401  (registers the rules)
 from .registry import RULES, Context, Settings
+
+
+def rules_by_scope(enabled: Iterable[str] | None = None) -> tuple[list[str], dict[str, list[Any]]]:
+    """The enabled rule ids (all by default) in order, and their rules by
+    scope.
+
+    Raises:
+        KeyError: an enabled rule id is unknown (the message lists the
+            known ids).
+    """
+    ids = list(RULES) if enabled is None else list(enabled)
+    unknown = [i for i in ids if i not in RULES]
+    if unknown:
+        raise KeyError(f"unknown rule id(s) {', '.join(unknown)}; known: {', '.join(RULES)}")
+    scoped: dict[str, list[Any]] = {}
+    for rid in ids:
+        scoped.setdefault(RULES[rid].scope, []).append(RULES[rid])
+    return ids, scoped
+
+
+def as_strict(findings: Iterable[Finding], settings: Settings) -> list[Finding]:
+    """The findings, with warnings reported as errors under ``settings.strict``."""
+    if not settings.strict:
+        return list(findings)
+    return [
+        Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f
+        for f in findings
+    ]
 
 
 def run_rules(
@@ -27,10 +55,7 @@ def run_rules(
             known ids).
     """
     settings = settings or Settings()
-    ids = list(RULES) if enabled is None else list(enabled)
-    unknown = [i for i in ids if i not in RULES]
-    if unknown:
-        raise KeyError(f"unknown rule id(s) {', '.join(unknown)}; known: {', '.join(RULES)}")
+    ids, _scoped = rules_by_scope(enabled)
     ctx = Context(collection=collection, analyses=analyses, settings=settings)
     out: list[Finding] = []
     for rid in ids:
@@ -46,8 +71,4 @@ def run_rules(
                 out.extend(info.func(ctx, loaded))
         else:
             out.extend(info.func(ctx))
-    if settings.strict:
-        out = [
-            Finding(f.rule, Severity.ERROR, f.message, f.span) if not f.is_error else f for f in out
-        ]
-    return sort_findings(out)
+    return sort_findings(as_strict(out, settings))
