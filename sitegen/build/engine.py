@@ -719,16 +719,17 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
     results: dict[str, Any] = {}
     keys: list[str] = []
     misses: list[tuple[str, Any, str]] = []
-    cards: dict[str, str] = {}  # loaded key -> card key, for method records
+    cardless: list[str] = []  # loaded keys of method records without a card
     for folder, _path, src in items:
         key = _loaded_key(code, lc.KINDS[folder], src)
         keys.append(key)
         if folder == "records":
-            cards[key] = key_of("card", key)
-            card = cache.get("card", cards[key])
+            # (a card is kept under its record's loaded key)
+            card = cache.get("card", key)
             if isinstance(card, _Card):
                 results[key] = (_LazyLoaded(cache, key, src, card), list(card.findings))
                 continue
+            cardless.append(key)
         hit = _loaded_hit(cache, key, src)
         if hit is not None:
             results[key] = hit
@@ -754,10 +755,10 @@ def _load(root: Path, cwd: Path, cache: Cache, code: str, jobs: int) -> Any:
             for folder, src, key in misses:
                 results[key] = load_text(lc.KINDS[folder], src)
                 cache.put("loaded", key, results[key])
-    for key, card_key in cards.items():
+    for key in cardless:
         loaded, findings = results[key]
-        if loaded is not None and not isinstance(loaded, _LazyLoaded):
-            cache.put("card", card_key, _card_of(loaded, findings))
+        if loaded is not None:
+            cache.put("card", key, _card_of(loaded, findings))
     lc.add_records(col, items, [results[k] for k in keys])
     return col
 
