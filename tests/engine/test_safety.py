@@ -123,8 +123,12 @@ def test_killed_early_leaves_the_previous_site(site: Path) -> None:
     before = tree_hashes(site / "out")
     (site / "theme/templates/base.html").write_text(
         (site / "theme/templates/base.html").read_text("utf-8") + "<!-- v2 -->\n", "utf-8")
-    proc = _start_build(site, {"SITEGEN_CACHE": str(site / "cache")})
-    time.sleep(1.0)
+    # slowed writes, so that on a fast machine the build is still running
+    # when the signal comes (while it imports, checks or renders)
+    proc = _start_build(site, {"SITEGEN_CACHE": str(site / "cache"),
+                               "SITEGEN_TEST_WRITE_DELAY": "0.05"})
+    time.sleep(0.5)
+    assert proc.poll() is None, "the build finished before it could be killed"
     proc.send_signal(signal.SIGKILL)
     proc.wait(timeout=10)
     assert tree_hashes(site / "out") == before
