@@ -1092,6 +1092,9 @@ def _build(source: Path, out: Path, settings: Settings, keep_going: bool, theme_
     from .. import units
 
     units.use_cache_folder(cache_root / "units")
+    from ..render.env import use_bytecode_folder
+
+    use_bytecode_folder(cache_root / "templates")
     # the quantities and conversions earlier builds made, so that a build
     # whose records hold only known ones never imports pint
     units_key = key_of("units", code, _library_version("pint"))
