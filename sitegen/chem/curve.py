@@ -56,7 +56,10 @@ the side where phi >= 0 (before equivalence) or phi <= 0 (after), where phi
 is convex or concave respectively, so Newton converges monotonically; within
 0.1 % of equivalence the start is polished on the two-minority model. A
 Newton step below 1e-7 V ends a point (quadratic convergence leaves ~1e-12
-V), so a typical 1000-point curve needs a single pass.
+V), so a typical 1000-point curve needs a single pass; when every point's
+first step is that small, the bracket bookkeeping of the safeguarded
+passes is skipped altogether. At a thousand points each numpy call costs
+about as much as its arithmetic, so the solver is written to make few.
 
 Initial state
 -------------
@@ -317,7 +320,12 @@ class _System:
     lnC_neg: NDArray[np.float64]
     lnD_q: NDArray[np.float64]  # ln(w_q T_q - C), formed from positive terms only
     lnD_p: NDArray[np.float64]  # ln(w_p T_p + C)
-    mode: NDArray[np.int8]  # 0: balance in minority form; 1/2: near-complete form
+    gap_q: NDArray[np.float64]  # ln(C+ / (w_q T_q)): the share of q still unreacted
+    gap_p: NDArray[np.float64]  # ln(C- / (w_p T_p)): the share of p in excess
+    # mode 0 (neither): the balance in the minority forms; mode 1 or 2: in the
+    # near-complete form of the limiting couple (see _phi)
+    mode1: NDArray[np.bool_]
+    mode2: NDArray[np.bool_]
     any_mode: bool  # False lets _phi take the shorter mode-0 path
     lnH: float
     f_RT: float  # F/(R T), 1/V
@@ -337,8 +345,11 @@ class _System:
             lnC_neg=self.lnC_neg[idx],
             lnD_q=self.lnD_q[idx],
             lnD_p=self.lnD_p[idx],
-            mode=self.mode[idx],
-            any_mode=bool(self.mode[idx].any()),
+            gap_q=self.gap_q[idx],
+            gap_p=self.gap_p[idx],
+            mode1=self.mode1[idx],
+            mode2=self.mode2[idx],
+            any_mode=bool(self.mode1[idx].any() or self.mode2[idx].any()),
             lnH=self.lnH,
             f_RT=self.f_RT,
         )
@@ -381,6 +392,7 @@ def _build(t: Titration, V: NDArray[np.float64]) -> _System:
     Vtot = t.V0_mL + V
     e_per_mL = _titrant_electrons_per_mmol(t) * t.titrant_mol_per_L  # mmol e- per mL
     Ne_A = _analyte_electrons_mmol(t)
+    e_V = e_per_mL * V  # mmol e- added
     with np.errstate(divide="ignore", invalid="ignore"):
         ln_Vtot = np.log(Vtot)
         ln_V = np.log(V)  # -inf at V = 0: no titrant yet
@@ -390,15 +402,15 @@ def _build(t: Titration, V: NDArray[np.float64]) -> _System:
             lnT_p = math.log(ti.ratio * t.titrant_mol_per_L) + ln_V - ln_Vtot
             # w T - C and w T + C written as sums of positive terms, exact
             # even when C ~ w T (the start of the curve)
-            lnD_q = np.log(an.n / an.b * (f * A + an.ratio * partner) + e_per_mL * V) - ln_Vtot
+            lnD_q = np.log(an.n / an.b * (f * A + an.ratio * partner) + e_V) - ln_Vtot
             lnD_p = math.log((1.0 - f) * Ne_A) - ln_Vtot
         else:
             p, q, sign = an, ti, -1.0
             lnT_p = math.log(an.ratio * A + partner) - ln_Vtot
             lnT_q = math.log(t.titrant_mol_per_L) + ln_V - ln_Vtot
-            lnD_p = np.log(f * Ne_A + an.n / an.b * partner + e_per_mL * V) - ln_Vtot
+            lnD_p = np.log(f * Ne_A + an.n / an.b * partner + e_V) - ln_Vtot
             lnD_q = math.log((1.0 - f) * Ne_A) - ln_Vtot
-        C = sign * ((1.0 - f) * Ne_A - e_per_mL * V) / Vtot
+        C = (sign * (1.0 - f) * Ne_A - sign * e_V) / Vtot
         ln_absC = np.log(np.abs(C))
         lnC_pos = np.where(C > 0, ln_absC, -np.inf)
         lnC_neg = np.where(C < 0, ln_absC, -np.inf)
@@ -408,11 +420,16 @@ def _build(t: Titration, V: NDArray[np.float64]) -> _System:
         # the curve), write the balance with its *minority* form instead:
         # N = C + P becomes w_q T_q (1 - y_q) + P = D_q, and P = -C + N becomes
         # w_p T_p y_p + N = D_p. Otherwise ln y ~ -1e-9 drowns in ln T.
-        mode = np.where(
-            lnC_pos - base_q > -_LN2, 1, np.where(lnC_neg - base_p > -_LN2, 2, 0)
-        ).astype(np.int8)
-    lnT_p = np.where(np.isfinite(lnT_p), lnT_p, 0.0)  # only feeds beta where absent
-    lnT_q = np.where(np.isfinite(lnT_q), lnT_q, 0.0)
+        gap_q = lnC_pos - base_q
+        gap_p = lnC_neg - base_p
+        mode1 = gap_q > -_LN2
+        mode2 = gap_p > -_LN2
+    # The titrant's couple is absent at V = 0 (ln T = -inf); there ln T
+    # only feeds beta, so 0 will do. The analyte's is present throughout.
+    if t.analyte_form == "red":
+        lnT_p = np.where(np.isfinite(lnT_p), lnT_p, 0.0)
+    else:
+        lnT_q = np.where(np.isfinite(lnT_q), lnT_q, 0.0)
     lnH = math.log(t.H_mol_per_L)
     f_RT = F / (R * t.T_K)
     return _System(
@@ -429,8 +446,11 @@ def _build(t: Titration, V: NDArray[np.float64]) -> _System:
         lnC_neg=lnC_neg,
         lnD_q=lnD_q,
         lnD_p=lnD_p,
-        mode=mode,
-        any_mode=bool(mode.any()),
+        gap_q=gap_q,
+        gap_p=gap_p,
+        mode1=mode1,
+        mode2=mode2,
+        any_mode=bool(mode1.any() or mode2.any()),
         lnH=lnH,
         f_RT=f_RT,
     )
@@ -446,7 +466,10 @@ def _ln_c(cp: Couple, E: _Arr, lnT: _Arr, lnH: float, f_RT: float) -> _Arr:
 def _fractions(lnc: _Arr, r: float) -> _Pair:
     """Solve ``c y^r + y = 1`` for (ln y, ln(1 - y)), vectorised, in log space."""
     if r == 1.0:
-        lny = -_softplus(lnc)
+        # ln y = -softplus(ln c) = min(-ln c, 0) - ln(1 + e^-|ln c|), one
+        # negation shared by both terms
+        neg = -lnc
+        lny = np.minimum(neg, 0.0) - np.log1p(np.exp(np.minimum(lnc, neg)))
         return lny, lnc + lny
     if r == 2.0:
         # y = 2 / (1 + sqrt(1 + 4c)), every step as a log-sum so nothing overflows.
@@ -493,13 +516,13 @@ def _phi(s: _System, E: _Arr) -> _Quad:
         right = _lae(lnN, s.lnC_neg)
         dphi = np.exp(lnP - left) * dln1my_p - np.exp(lnN - right) * dlny_q
         return left - right, dphi, left, right
-    m1, m2 = s.mode == 1, s.mode == 2
-    add_left = np.where(m1, s.base_q + ln1my_q, s.lnC_pos)
-    add_right = np.where(m2, s.base_p + lny_p, s.lnC_neg)
-    left = _lae(lnP, add_left)
-    right = _lae(lnN, add_right)
-    d_left = np.exp(lnP - left) * dln1my_p + np.where(m1, np.exp(add_left - left) * dln1my_q, 0.0)
-    d_right = np.exp(lnN - right) * dlny_q + np.where(m2, np.exp(add_right - right) * dlny_p, 0.0)
+    m1, m2 = s.mode1, s.mode2
+    left = _lae(lnP, np.where(m1, s.base_q + ln1my_q, s.lnC_pos))
+    right = _lae(lnN, np.where(m2, s.base_p + lny_p, s.lnC_neg))
+    # the shares of the two terms of each side sum to 1
+    w_left, w_right = np.exp(lnP - left), np.exp(lnN - right)
+    d_left = w_left * dln1my_p + np.where(m1, (1.0 - w_left) * dln1my_q, 0.0)
+    d_right = w_right * dlny_q + np.where(m2, (1.0 - w_right) * dlny_p, 0.0)
     left = np.where(m2, s.lnD_p, left)
     right = np.where(m1, s.lnD_q, right)
     d_left = np.where(m2, 0.0, d_left)
@@ -518,11 +541,11 @@ def _start(s: _System) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArra
     neg = s.C < 0
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         # reductant-side couple q: y = C / (w T), 1 - y = D_q / (w T)
-        lny = np.minimum(s.lnC_pos - s.base_q, 0.0)
+        lny = np.minimum(s.gap_q, 0.0)
         ln1my = np.maximum(np.minimum(s.lnD_q - s.base_q, 0.0), _LN_FLOOR)
         E1 = (ln1my - s.q.ratio * lny - s.beta_q) / _alpha(s.q, s.f_RT)
         # oxidant-side couple p: 1 - y = -C / (w T), y = D_p / (w T)
-        ln1my = np.minimum(s.lnC_neg - s.base_p, 0.0)
+        ln1my = np.minimum(s.gap_p, 0.0)
         lny = np.maximum(np.minimum(s.lnD_p - s.base_p, 0.0), _LN_FLOOR)
         E2 = (ln1my - s.p.ratio * lny - s.beta_p) / _alpha(s.p, s.f_RT)
     hi = np.where(pos & np.isfinite(E1), E1, np.inf)
@@ -543,28 +566,72 @@ def _start(s: _System) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArra
     # ln P ~ Lp + ap E, ln N ~ Lq - bq E, in which phi is cheap: it spares
     # the exact solver extra passes over the few points right at equivalence.
     with np.errstate(invalid="ignore"):
-        near = np.flatnonzero(np.fmax(s.lnC_pos - s.base_q, s.lnC_neg - s.base_p) < math.log(1e-3))
-    if near.size:
+        near = np.flatnonzero(np.fmax(s.gap_q, s.gap_p) < _LN_NEAR)
+    if near.size <= _FEW:
+        bq = aq / rq
+        for i in near.tolist():
+            u = _polish_one(
+                float(s.base_p[i] + s.beta_p[i]), float(s.base_q[i] - s.beta_q[i] / rq),
+                float(s.lnC_pos[i]), float(s.lnC_neg[i]), float(E[i]), ap, bq,
+            )
+            if math.isfinite(u):
+                E[i] = min(max(u, lo[i]), hi[i])
+    else:
         bq = aq / rq
         Lp = s.base_p[near] + s.beta_p[near]
         Lq = s.base_q[near] - s.beta_q[near] / rq
         Cp, Cn = s.lnC_pos[near], s.lnC_neg[near]
         u = E[near]
-        for _ in range(2):
+        for _ in range(_POLISH_STEPS):
             lnP, lnN = Lp + ap * u, Lq - bq * u
             left, right = _lae(lnP, Cp), _lae(lnN, Cn)
             du = (left - right) / (ap * np.exp(lnP - left) + bq * np.exp(lnN - right))
-            u = u - np.clip(du, -0.05, 0.05)
+            u = u - np.clip(du, -_POLISH_CAP, _POLISH_CAP)
         u = np.clip(u, lo[near], hi[near])
         E[near] = np.where(np.isfinite(u), u, E[near])
     return E, lo, hi
 
 
+#: The start is polished within 0.1 % of the stoichiometric point.
+_LN_NEAR = math.log(1e-3)
+#: Newton steps of the start's polish near the stoichiometric point, and
+#: the largest step each may take, V.
+_POLISH_STEPS = 2
+_POLISH_CAP = 0.05
+#: Up to this many points the polish runs on Python floats: a numpy call
+#: costs about a microsecond whatever its size, and a curve of evenly
+#: spaced volumes has only one or two points this close to equivalence.
+_FEW = 16
+
+
+def _polish_one(Lp: float, Lq: float, Cp: float, Cn: float, u: float,
+                ap: float, bq: float) -> float:
+    """The start's polish of one point (the loop above, on floats)."""
+
+    def lae(x: float, y: float) -> float:
+        m = max(x, y)
+        return m if m == -math.inf else m + math.log1p(math.exp(-abs(x - y)))
+
+    for _ in range(_POLISH_STEPS):
+        lnP, lnN = Lp + ap * u, Lq - bq * u
+        left, right = lae(lnP, Cp), lae(lnN, Cn)
+        try:
+            du = (left - right) / (ap * math.exp(lnP - left) + bq * math.exp(lnN - right))
+        except (ZeroDivisionError, OverflowError):
+            return math.nan
+        if math.isnan(du):
+            return math.nan
+        u -= min(max(du, -_POLISH_CAP), _POLISH_CAP)
+    return u
+
+
 def _newton_pass(
-    sub: _System, Ea: _Arr, la: _Arr, ha: _Arr
+    sub: _System, Ea: _Arr, la: _Arr, ha: _Arr, at_Ea: _Quad | None = None
 ) -> tuple[_Arr, _Arr, _Arr, NDArray[np.bool_], _Arr]:
-    """One safeguarded Newton pass: new E, bracket, and which points are done."""
-    phi, dphi, left, right = _phi(sub, Ea)
+    """One safeguarded Newton pass: new E, bracket, and which points are done.
+
+    ``at_Ea`` is ``_phi(sub, Ea)`` if the caller has it already."""
+    phi, dphi, left, right = _phi(sub, Ea) if at_Ea is None else at_Ea
     la = np.where(phi < 0, Ea, la)  # Ea lies inside the bracket already
     ha = np.where(phi > 0, Ea, ha)
     # phi is at the rounding level of its two log terms: nothing more to
@@ -592,8 +659,17 @@ def _solve(s: _System) -> NDArray[np.float64]:
     """Solve phi(E) = 0 at all points at once by safeguarded Newton."""
     E, lo, hi = _start(s)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        # The start is usually within 1e-12 V already, so first a plain
+        # Newton step on every point, kept inside the start's bracket (which
+        # holds the root): if every step is a small one, every point is done
+        # and the bookkeeping of the safeguarded passes is not needed.
+        at_E = _phi(s, E)
+        phi, dphi = at_E[0], at_E[1]
+        step = phi / dphi
+        if np.all((np.abs(step) <= _NEWTON_DONE) & (dphi > 0)):
+            return np.minimum(np.maximum(E - step, lo), hi)
         # first pass on every point without index bookkeeping
-        E, lo, hi, done, phi = _newton_pass(s, E, lo, hi)
+        E, lo, hi, done, phi = _newton_pass(s, E, lo, hi, at_E)
         if done.all():
             return E
         idx = np.flatnonzero(~done)

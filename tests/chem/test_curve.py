@@ -74,6 +74,27 @@ def test_vectorised_matches_pointwise_brentq(name):
     assert np.max(np.abs(fast[ok] - ref[ok])) < 1e-9
 
 
+@pytest.mark.parametrize("name", sorted(SETUPS))
+def test_dense_volumes_at_equivalence_match_pointwise_brentq(name):
+    # Many volumes within 0.1 % of the stoichiometric point take the start's
+    # array polish; one or two at a time take its per-point form. Both must
+    # give the pointwise solution.
+    t = SETUPS[name]
+    V_st = stoichiometric_volume_mL(t)
+    V = V_st * (1.0 + np.linspace(-9e-4, 9e-4, 64))
+    dense = titration_curve(t, V).E_V
+    ref = curve_pointwise_brentq(t, V)
+    assert np.array_equal(np.isnan(dense), np.isnan(ref))
+    ok = ~np.isnan(dense)
+    if ok.any():
+        assert np.max(np.abs(dense[ok] - ref[ok])) < 1e-9
+    alone = np.array([titration_curve(t, [v]).E_V[0] for v in V[::8]])
+    assert np.array_equal(np.isnan(alone), np.isnan(dense[::8]))
+    ok = ~np.isnan(alone)
+    if ok.any():
+        assert np.max(np.abs(alone[ok] - dense[::8][ok])) < 1e-12
+
+
 @pytest.mark.parametrize(
     ("name", "Veq"),
     [
