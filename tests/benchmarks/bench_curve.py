@@ -7,7 +7,10 @@ benchmark runner calls :func:`compare_curve_speed`. Run it alone with
 Both solvers work on the same model (sitegen.chem.curve). Each timing is the
 best of several runs after one warm-up call, so neither the lazy scipy import
 nor first-call caches are counted; the ratio is what matters, not the
-absolute times, which depend on the machine and its load.
+absolute times, which depend on the machine and its load. The two solvers'
+runs are interleaved in rounds (one pointwise run, then a batch of
+vectorised runs), so that both bests come from the same stretch of time
+on a shared machine rather than from two different ones.
 """
 
 from __future__ import annotations
@@ -64,24 +67,35 @@ SETUPS: dict[str, Titration] = {
 }
 
 
-def _best_of(fn: Callable[[], object], repeats: int) -> float:
-    fn()  # warm-up: lazy imports, allocator
-    best = float("inf")
-    for _ in range(repeats):
-        t0 = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t0)
-    return best
+def _seconds(fn: Callable[[], object]) -> float:
+    t0 = time.perf_counter()
+    fn()
+    return time.perf_counter() - t0
+
+
+def _best_interleaved(
+    slow: Callable[[], object], fast: Callable[[], object], rounds: int, fast_per_round: int
+) -> tuple[float, float]:
+    """Best times of ``slow`` and ``fast``, run alternately: each round runs
+    ``slow`` once and ``fast`` ``fast_per_round`` times."""
+    slow(), fast()  # warm-up: lazy imports, allocator
+    best_slow = best_fast = float("inf")
+    for _ in range(rounds):
+        best_slow = min(best_slow, _seconds(slow))
+        for _ in range(fast_per_round):
+            best_fast = min(best_fast, _seconds(fast))
+    return best_slow, best_fast
 
 
 def compare_curve_speed(
-    n_points: int = 1000, repeats: int = 15, pointwise_repeats: int = 3
+    n_points: int = 1000, repeats: int = 150, pointwise_repeats: int = 5
 ) -> dict[str, object]:
     """Time the vectorised curve against the pointwise brentq reference.
 
     Args:
         n_points: volumes per curve, evenly spaced from 0 to 300 % of Veq.
-        repeats: runs of the vectorised solver per setup (best is kept).
+        repeats: runs of the vectorised solver per setup (best is kept),
+            spread evenly over the pointwise runs.
         pointwise_repeats: runs of the pointwise solver per setup (best is kept).
 
     Returns:
@@ -96,8 +110,12 @@ def compare_curve_speed(
         V = np.linspace(0.0, 3.0 * equivalence_volume_mL(t), n_points)
         fast = titration_curve(t, V).E_V
         ref = curve_pointwise_brentq(t, V)
-        tv = _best_of(lambda t=t, V=V: titration_curve(t, V), repeats)
-        tp = _best_of(lambda t=t, V=V: curve_pointwise_brentq(t, V), pointwise_repeats)
+        tp, tv = _best_interleaved(
+            lambda t=t, V=V: curve_pointwise_brentq(t, V),
+            lambda t=t, V=V: titration_curve(t, V),
+            rounds=pointwise_repeats,
+            fast_per_round=max(1, repeats // pointwise_repeats),
+        )
         rows.append(
             {
                 "setup": name,

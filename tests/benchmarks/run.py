@@ -67,7 +67,7 @@ def make_collection(n: int, dest: Path) -> list[str]:
         stem, text = base[i % len(base)]
         new = f"{stem}-c{i:05d}"
         body = re.sub(r"^id: .*$", f"id: {new}", text, count=1, flags=re.M)
-        body = re.sub(r"^title: (.*)$", lambda m: f"title: {m.group(1)} (copy {i})", body,
+        body = re.sub(r"^title: (.*)$", lambda m, i=i: f"title: {m.group(1)} (copy {i})", body,
                       count=1, flags=re.M)
         (src / "records" / f"{new}.yaml").write_text(body, "utf-8")
         ids.append(new)
@@ -232,7 +232,8 @@ def _serve_freshness(work: Path, rec: Path, jobs: int | None, repeats: int) -> l
                     if marker.encode() in resp.read():
                         break
                 if time.perf_counter() - t0 > 60:
-                    raise SystemExit(f"serve never showed the edit\n{log.read_text('utf-8')[-3000:]}")
+                    tail = log.read_text("utf-8")[-3000:]
+                    raise SystemExit(f"serve never showed the edit\n{tail}")
                 time.sleep(0.01)
             times.append(time.perf_counter() - t0)
         return times
@@ -380,7 +381,8 @@ def main(argv: list[str] | None = None) -> int:
         f"- no-change rebuild: {', '.join(_fmt_s(r['seconds']) for r in main_run['nochange'])}",
         f"- one record changed: {', '.join(_fmt_s(r['seconds']) for r in main_run['one_record'])}",
         f"- one record changed, its curve drawn again (drawings dropped from the cache, as"
-        f" after an edit of the chemistry): {', '.join(_fmt_s(r['seconds']) for r in main_run['one_redraw'])}"
+        " after an edit of the chemistry): "
+        f"{', '.join(_fmt_s(r['seconds']) for r in main_run['one_redraw'])}"
         f" (median {_fmt_s(redraw)} = {100 * redraw / cold:.2f} % of cold)",
         f"- `sitegen serve`, save to fresh page: {', '.join(_fmt_s(t) for t in main_run['serve'])}",
         f"- one reagent changed ({main_run['reagent_users']} of {n} methods use it):"
@@ -394,7 +396,13 @@ def main(argv: list[str] | None = None) -> int:
         f" that) = {cold / (n * own_t):.2f} (for information: the plot itself is cheaper"
         f" than the yardstick, so this ratio is not the target's)",
         f"- curve: vectorised {curve['vectorised_s'] * 1e3:.2f} ms, pointwise brentq"
-        f" {curve['pointwise_s'] * 1e3:.0f} ms over {len(curve['per_setup'])} setups",
+        f" {curve['pointwise_s'] * 1e3:.0f} ms over {len(curve['per_setup'])} setups"
+        " (best of each, the two solvers' runs interleaved): "
+        + "; ".join(
+            f"{r['setup']} {r['vectorised_s'] * 1e3:.3f} ms vs {r['pointwise_s'] * 1e3:.1f} ms"
+            f" = {r['speedup']:.0f}x"
+            for r in curve["per_setup"]
+        ),
     ]
     if big is not None:
         lines.append(f"- cold build of {5 * n}: {_fmt_s(big['cold'][0]['seconds'])}")
