@@ -11,6 +11,7 @@ from __future__ import annotations
 __all__ = ["DEFAULT_THEME", "environment", "theme_layers", "use_bytecode_folder"]
 
 import hashlib
+import os
 from functools import lru_cache
 from pathlib import Path
 
@@ -66,7 +67,9 @@ def use_bytecode_folder(folder: Path | None) -> None:
 
 class _BytecodeFolder(FileSystemBytecodeCache):
     """jinja2's folder cache, treating any unreadable entry as missing
-    (jinja2 itself lets a few kinds of damage raise)."""
+    (jinja2 itself lets a few kinds of damage raise) and a folder that
+    cannot be written, or was deleted under a long-lived process, as a
+    cache that keeps nothing."""
 
     def load_bytecode(self, bucket: Bucket) -> None:
         try:
@@ -74,16 +77,18 @@ class _BytecodeFolder(FileSystemBytecodeCache):
         except Exception:
             bucket.reset()
 
+    def dump_bytecode(self, bucket: Bucket) -> None:
+        try:
+            os.makedirs(self.directory, exist_ok=True)
+            super().dump_bytecode(bucket)
+        except OSError:
+            pass
+
 
 @lru_cache(maxsize=8)
-def _bytecode_cache(folder: str) -> FileSystemBytecodeCache | None:
+def _bytecode_cache(folder: str) -> FileSystemBytecodeCache:
     tag = hashlib.sha256(repr((jinja2.__version__, sorted(_SETTINGS.items()))).encode())
-    path = Path(folder) / tag.hexdigest()[:16]
-    try:
-        path.mkdir(parents=True, exist_ok=True)
-    except OSError:  # an unwritable cache folder: compile in memory only
-        return None
-    return _BytecodeFolder(str(path))
+    return _BytecodeFolder(str(Path(folder) / tag.hexdigest()[:16]))
 
 
 @lru_cache(maxsize=8)

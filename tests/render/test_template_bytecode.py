@@ -74,3 +74,14 @@ def test_an_unwritable_folder_only_costs_time(tmp_path: Path):
     finally:
         use_bytecode_folder(None)
         env_module._environment.cache_clear()
+
+
+def test_a_folder_deleted_between_builds_is_made_again(tmp_path: Path, bytecode: Path):
+    # a long-lived process (the preview) outlives a user's clearing of the cache
+    import shutil
+
+    theme = _theme(tmp_path, "<p>{{ name }}</p>")
+    assert _fresh_process_render(theme, name="a") == "<p>a</p>"
+    shutil.rmtree(bytecode)
+    assert _fresh_process_render(theme, name="b") == "<p>b</p>"
+    assert [p for p in bytecode.rglob("*") if p.is_file()]
