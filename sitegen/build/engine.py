@@ -400,6 +400,9 @@ class _Deps:
         # the id sets and shared records it was computed against
         self._memo = memo
         self._tables = ""
+        #: memo keys this object looked up or added, and whether it added any
+        self._used: set[Any] = set()
+        self.added = False
         if memo is not None:
             self._tables = key_of(
                 sorted(collection.methods),
@@ -420,13 +423,21 @@ class _Deps:
         src = self.col.methods[mid].source
         k = ("deps", mid, src.path, src.digest, self._tables)
         if self._memo is not None and k in self._memo:
+            self._used.add(k)
             return self._memo[k]  # type: ignore[no-any-return]
         names, methods = self.closure(mid)
         value = (names, methods, key_of(self.record_parts(names)),
                  key_of([(n, n in self.col.methods) for n in sorted(names)]))
         if self._memo is not None:
             self._memo[k] = value
+            self._used.add(k)
+            self.added = True
         return value
+
+    def used_memo(self) -> dict[Any, Any]:
+        """The memo cut down to the answers this object gave."""
+        memo = self._memo or {}
+        return {"tables": self._tables, **{k: memo[k] for k in self._used}}
 
     def _names_of(self, kind: str, rid: str, loaded: Any) -> set[str]:
         k = (kind, rid)
@@ -558,12 +569,9 @@ def _plot_library_version() -> str:
 def _library_version(name: str) -> str:
     # read from the installed metadata: importing the library to ask would
     # cost what the entries it keys save
-    from importlib.metadata import PackageNotFoundError, version
+    from .installed import installed_version
 
-    try:
-        return version(name)
-    except PackageNotFoundError:  # pragma: no cover - a dependency
-        return "unknown"
+    return installed_version(name) or "unknown"
 
 
 def _render_entry(cache: Cache, code: str, collection: Any, mid: str, key: str,
@@ -1331,7 +1339,15 @@ def _build_loaded(
 
     # -- 3. analyse --------------------------------------------------------------
     t0 = time.perf_counter()
-    deps = _Deps(collection, cache.side_memo("deps"))
+    memo = cache.side_memo("deps")
+    saved_as = None
+    if memo is None:
+        # a one-off process starts from the answers the last build gave (each
+        # is keyed by its record's text and the shared tables, so never stale)
+        saved_as = key_of("deps", code)
+        saved = cache.get("deps", saved_as)
+        memo = dict(saved) if isinstance(saved, dict) else {}
+    deps = _Deps(collection, memo)
     # the lab's safety rules apply to every method's hazard summary
     sr = collection.safety_rules_source
     safety_key = (sr.path, sr.digest) if sr is not None else None
@@ -1348,6 +1364,10 @@ def _build_loaded(
             analyses.add_cached(mid, key)
         else:
             todo.append((mid, key))
+    if saved_as is not None:
+        kept = deps.used_memo()
+        if deps.added or len(kept) != len(memo):
+            cache.put("deps", saved_as, kept)
     new = runner.map("analyse", _analyse_many, todo)
     for mid, key in todo:
         cache.remember("analysis", key, new[mid])
