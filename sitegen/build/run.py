@@ -236,9 +236,6 @@ def default_theme() -> Path:
 
 
 def _version() -> str:
-    from importlib.metadata import PackageNotFoundError, version
+    from .installed import installed_version
 
-    try:
-        return version("sitegen")
-    except PackageNotFoundError:
-        return "0+unknown"
+    return installed_version("sitegen") or "0+unknown"
