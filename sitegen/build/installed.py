@@ -34,6 +34,7 @@ def _listing(folder: str) -> tuple[str, ...]:
         return ()
 
 
+@functools.cache
 def installed_version(name: str) -> str | None:
     """The version of the installed distribution ``name`` that Python
     would import (the first on ``sys.path``), or None if it is not

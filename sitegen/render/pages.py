@@ -36,7 +36,7 @@ __all__ = [
 
 import datetime as _dt
 import json
-from collections.abc import Iterable, Mapping, Sequence
+from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
 from fractions import Fraction
 from typing import TYPE_CHECKING, Any
@@ -144,11 +144,36 @@ def site_context(collection: Any, options: Any, path: str, title: str) -> dict[s
     }
 
 
-def published_methods(collection: Any, options: Any) -> dict[str, Any]:
+class _Published(Mapping[str, Any]):
+    """The loaded methods minus the excluded ones, iterated in id order.
+
+    A view, not a copy: a method's own pages only look ids up in it, and
+    copying (and sorting) every method for each page would make a site's
+    render time grow with the square of its size."""
+
+    def __init__(self, methods: Mapping[str, Any], excluded: frozenset[str]) -> None:
+        self._methods = methods
+        self._excluded = excluded
+
+    def __getitem__(self, mid: str) -> Any:
+        if mid in self._excluded:
+            raise KeyError(mid)
+        return self._methods[mid]
+
+    def __contains__(self, mid: object) -> bool:
+        return mid in self._methods and mid not in self._excluded
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(sorted(k for k in self._methods if k not in self._excluded))
+
+    def __len__(self) -> int:
+        return sum(1 for k in self._methods if k not in self._excluded)
+
+
+def published_methods(collection: Any, options: Any) -> Mapping[str, Any]:
     """Methods that get pages: every loaded method not excluded under
-    --keep-going, sorted by id."""
-    excluded = {mid for mid, _ in options.excluded}
-    return {k: v for k, v in sorted(collection.methods.items()) if k not in excluded}
+    --keep-going, iterated in id order (a view of ``collection.methods``)."""
+    return _Published(collection.methods, frozenset(mid for mid, _ in options.excluded))
 
 
 def _glossary_hrefs(collection: Any, root: str) -> dict[str, str]:

@@ -27,12 +27,14 @@ def test_name_forms_and_first_on_path(tmp_path: Path, monkeypatch):
     (second / "lab_tools-1.0.dist-info").mkdir(parents=True)
     monkeypatch.setattr(sys, "path", [str(first), str(second)])
     installed._listing.cache_clear()
+    installed_version.cache_clear()
     try:
         # PEP 503 names compare with -, _ and . alike and without case
         for name in ("lab-tools", "Lab.Tools", "LAB_TOOLS"):
             assert installed_version(name) == "2.0.1"
     finally:
         installed._listing.cache_clear()
+        installed_version.cache_clear()
 
 
 def test_read_from_the_folder_names_without_the_standard_library(monkeypatch):
