@@ -1,7 +1,5 @@
 """``python -m sitegen`` runs the command line."""
 
-import sys
+from .cli import run
 
-from .cli import main
-
-sys.exit(main())
+run()
