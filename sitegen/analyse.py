@@ -779,7 +779,7 @@ def _curve(
     )
     try:
         veq = cv.equivalence_volume_mL(t)
-        grid = np.unique(
+        grid = np.sort(
             np.concatenate(
                 [
                     np.linspace(0.0, 2.0 * veq, 401),
@@ -787,6 +787,8 @@ def _curve(
                 ]
             )
         )
+        # each volume once (np.unique would do, but it imports numpy.ma)
+        grid = grid[np.concatenate(([True], grid[1:] != grid[:-1]))]
         c = cv.titration_curve(t, grid)
         brk: float | None
         try:

@@ -17,8 +17,6 @@ __all__ = [
     "write_site",
 ]
 
-import ctypes
-import ctypes.util
 import os
 import shutil
 from collections.abc import Collection, Mapping
@@ -67,10 +65,12 @@ def _exchange(a: Path, b: Path) -> bool:
     Returns False where the call is not available; the caller then falls
     back to two renames, which leave a short window with no output folder.
     """
+    import ctypes  # only here: importing it costs more than a small rebuild's swap
+
     try:
-        libc = ctypes.CDLL(ctypes.util.find_library("c") or "libc.so.6", use_errno=True)
-        fn = libc.renameat2
-    except (OSError, AttributeError):
+        # the C library the interpreter is linked with (dlopen of NULL)
+        fn = ctypes.CDLL(None, use_errno=True).renameat2
+    except (OSError, AttributeError, TypeError):
         return False
     fn.argtypes = [ctypes.c_int, ctypes.c_char_p, ctypes.c_int, ctypes.c_char_p, ctypes.c_uint]
     rc = fn(_AT_FDCWD, os.fsencode(a), _AT_FDCWD, os.fsencode(b), _RENAME_EXCHANGE)
