@@ -17,7 +17,6 @@ import os
 import re
 import sys
 
-
 _SUFFIX = ".dist-info"
 
 

@@ -69,7 +69,7 @@ class FormulaError(ChemError):
         return FormulaError(text, self.index + offset, self.reason, self.suggestion)
 
 
-class UnknownElement(ChemError):  # noqa: N818 - names fixed by the API
+class UnknownElement(ChemError):
     """An element symbol that is not in the table of elements.
 
     Args:
@@ -83,7 +83,7 @@ class UnknownElement(ChemError):  # noqa: N818 - names fixed by the API
         super().__init__(f"unknown element symbol {symbol!r}")
 
 
-class NoAtomicWeight(ChemError):  # noqa: N818 - names fixed by the API
+class NoAtomicWeight(ChemError):
     """The element exists but has no standard atomic weight (e.g. Tc, Pm, Po).
 
     Args:
@@ -95,7 +95,7 @@ class NoAtomicWeight(ChemError):  # noqa: N818 - names fixed by the API
         super().__init__(f"element {symbol!r} has no standard atomic weight (no stable isotope)")
 
 
-class Unbalanced(ChemError):  # noqa: N818 - names fixed by the API
+class Unbalanced(ChemError):
     """A reaction whose atoms or charge do not balance.
 
     Args:
@@ -122,7 +122,7 @@ class Unbalanced(ChemError):  # noqa: N818 - names fixed by the API
         super().__init__("unbalanced: " + "; ".join(parts) if parts else "unbalanced")
 
 
-class CannotBalance(ChemError):  # noqa: N818 - names fixed by the API
+class CannotBalance(ChemError):
     """No unique balanced equation (or oxidation state) could be found.
 
     Args:
@@ -136,7 +136,7 @@ class CannotBalance(ChemError):  # noqa: N818 - names fixed by the API
         super().__init__(f"cannot balance: {reason} (species: {', '.join(self.species)})")
 
 
-class NoChain(ChemError):  # noqa: N818 - names fixed by the API
+class NoChain(ChemError):
     """No stoichiometric path links the analyte to the titrant.
 
     Args:

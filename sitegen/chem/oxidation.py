@@ -105,7 +105,7 @@ class RedoxChanges(TypedDict):
     """Electrons transferred (the larger of lost and gained)."""
 
 
-class _Undecidable(Exception):  # noqa: N818 - private signal
+class _Undecidable(Exception):
     pass
 
 

@@ -49,7 +49,11 @@ def method_json(loaded: Any, analysis: Any, findings: Sequence[Finding]) -> byte
     if res is not None:
         factor = res.factor
     elif analysis is not None:
-        factor = analysis.factor_derived if analysis.factor_derived is not None else analysis.factor_stated
+        factor = (
+            analysis.factor_derived
+            if analysis.factor_derived is not None
+            else analysis.factor_stated
+        )
     data: dict[str, Any] = {
         "id": rec.id,
         "title": rec.title,
@@ -60,7 +64,9 @@ def method_json(loaded: Any, analysis: Any, findings: Sequence[Finding]) -> byte
         if cv is not None
         else (rec.conditions.reference_electrode or "SHE"),
         "equivalence_volume_mL": fmt.data_float(cv.equivalence_volume_mL) if cv else None,
-        "equivalence_potential_V_vs_SHE": fmt.data_float(cv.equivalence_potential_V) if cv else None,
+        "equivalence_potential_V_vs_SHE": fmt.data_float(cv.equivalence_potential_V)
+        if cv
+        else None,
         "equivalence_potential_V_vs_ref": fmt.data_float(cv.equivalence_potential_ref_V)
         if cv
         else None,
@@ -69,7 +75,9 @@ def method_json(loaded: Any, analysis: Any, findings: Sequence[Finding]) -> byte
         "log10_K": fmt.data_float(analysis.log10_K) if analysis is not None else None,
         "factor": _fraction_float(factor),
         "factor_stated": _fraction_float(analysis.factor_stated) if analysis is not None else None,
-        "factor_derived": _fraction_float(analysis.factor_derived) if analysis is not None else None,
+        "factor_derived": _fraction_float(analysis.factor_derived)
+        if analysis is not None
+        else None,
         # only a redox indicator has a transition potential and so an error
         "indicator_error_percent": fmt.data_float(ind.error_percent)
         if ind is not None and ind.kind == "redox"

@@ -34,7 +34,6 @@ __all__ = [
     "site_context",
 ]
 
-import datetime as _dt
 import json
 from collections.abc import Iterable, Iterator, Mapping, Sequence
 from dataclasses import dataclass
@@ -268,10 +267,7 @@ def hazard_block(
         derived = False
     own = [str(s) for s in record.safety]
     extra = [c for c in cautions if c not in own]
-    if signal in (None, "", "none"):
-        signal_text = "No signal word"
-    else:
-        signal_text = str(signal)
+    signal_text = "No signal word" if signal in (None, "", "none") else str(signal)
     return {
         "signal": signal_text,
         "signal_class": _signal_class(signal),
@@ -417,8 +413,9 @@ def _couple_rows(record: Any, analysis: Any, ref: str) -> list[dict[str, Any]]:
     return rows
 
 
-def _curve_block(record: Any, analysis: Any, ref: str, mid: str,
-                 drawings: DrawingStore | None = None) -> dict[str, Any] | None:
+def _curve_block(
+    record: Any, analysis: Any, ref: str, mid: str, drawings: DrawingStore | None = None
+) -> dict[str, Any] | None:
     if analysis is None or analysis.curve is None:
         return None
     from .plots import curve_key, curve_svg
@@ -497,7 +494,8 @@ def _calc_block(record: Any, analysis: Any) -> dict[str, Any]:
     block["result"] = {
         "formula": res.formula,
         "inputs": [
-            {"symbol": s, "what": d, "value": fmt.general(v), "unit": u} for s, d, v, u in res.inputs
+            {"symbol": s, "what": d, "value": fmt.general(v), "unit": u}
+            for s, d, v, u in res.inputs
         ],
         "recomputed": fmt.fixed(res.value, res.decimals),
         "recomputed_full": fmt.sig(res.value, 6),
@@ -554,7 +552,13 @@ def _calculator(record: Any, res: Any) -> dict[str, Any]:
         xv = we.excess_volume or record.titration.excess_volume
         xc = record.titration.excess_concentration
         fields.append(
-            ("excess_volume", "Volume of excess reagent added", "mL", xv.value if xv else 0.0, "0.01")
+            (
+                "excess_volume",
+                "Volume of excess reagent added",
+                "mL",
+                xv.value if xv else 0.0,
+                "0.01",
+            )
         )
         fields.append(
             (
@@ -597,7 +601,9 @@ def _calculator(record: Any, res: Any) -> dict[str, Any]:
     }
 
 
-def _standardisation(record: Any, collection: Any, published: Mapping[str, Any], root: str) -> dict[str, Any]:
+def _standardisation(
+    record: Any, collection: Any, published: Mapping[str, Any], root: str
+) -> dict[str, Any]:
     tid = record.titration.titrant
     loaded = collection.reagents.get(tid)
     out: dict[str, Any] = {
@@ -842,7 +848,11 @@ def home_page(collection: Any, options: Any) -> Page:
         for key, label in (("analyte", "Analyte"), ("matrix", "Matrix"), ("titrant", "Titrant"))
     ]
     ctx["retired_count"] = sum(1 for v in published.values() if v.record.status.value == "retired")
-    ctx["scripts"] = [root + "search-index.js", root + "static/search.js", root + "static/filter.js"]
+    ctx["scripts"] = [
+        root + "search-index.js",
+        root + "static/search.js",
+        root + "static/filter.js",
+    ]
     return Page(path, "index.html", ctx)
 
 
@@ -896,7 +906,9 @@ def _uses(collection: Any, root: str, found: Sequence[tuple[str, Any]]) -> list[
 
 
 def reagent_page(
-    rid: str, collection: Any, options: Any,
+    rid: str,
+    collection: Any,
+    options: Any,
     uses: Mapping[str, Sequence[tuple[str, Any]]] | None = None,
 ) -> Page:
     """``reagents/<id>/index.html``; ``uses``: :func:`reagent_uses`, when
@@ -984,9 +996,13 @@ def reagents_index_page(collection: Any, options: Any) -> Page:
             "formula": Markup(species_html(lo.record.formula)),
             "href": root + reagent_path(rid),
             "signal": (lo.record.hazards.signal_word if lo.record.hazards else "none"),
-            "signal_class": _signal_class(lo.record.hazards.signal_word if lo.record.hazards else None),
+            "signal_class": _signal_class(
+                lo.record.hazards.signal_word if lo.record.hazards else None
+            ),
         }
-        for rid, lo in sorted(collection.reagents.items(), key=lambda kv: (_fold(kv[1].record.name), kv[0]))
+        for rid, lo in sorted(
+            collection.reagents.items(), key=lambda kv: (_fold(kv[1].record.name), kv[0])
+        )
     ]
     return Page(path, "reagents.html", ctx)
 
@@ -1010,8 +1026,14 @@ def indicator_page(iid: str, collection: Any, options: Any) -> Page:
     ctx["indicator"] = {
         "id": iid,
         "name": rec.name,
-        "kind": {"redox": "redox indicator", "specific": "specific indicator", "self": "self-indicating titrant"}[rec.kind],
-        "E_SHE": fmt.potential(rec.transition_potential.value) if rec.transition_potential else None,
+        "kind": {
+            "redox": "redox indicator",
+            "specific": "specific indicator",
+            "self": "self-indicating titrant",
+        }[rec.kind],
+        "E_SHE": fmt.potential(rec.transition_potential.value)
+        if rec.transition_potential
+        else None,
         "E_ref": fmt.potential(e_ref) if e_ref is not None else None,
         "reference": ref,
         "n": rec.n,
@@ -1055,7 +1077,9 @@ def indicators_index_page(collection: Any, options: Any) -> Page:
             if lo.record.transition_potential
             else None,
         }
-        for iid, lo in sorted(collection.indicators.items(), key=lambda kv: (_fold(kv[1].record.name), kv[0]))
+        for iid, lo in sorted(
+            collection.indicators.items(), key=lambda kv: (_fold(kv[1].record.name), kv[0])
+        )
     ]
     return Page(path, "indicators.html", ctx)
 
@@ -1075,9 +1099,7 @@ def rules_page(collection: Any, options: Any) -> Page:
     """``rules.html``: every registered check with its explanation."""
     path = "rules.html"
     ctx = site_context(collection, options, path, "Checks")
-    ctx["rules"] = [
-        {"id": r.id, "scope": r.scope, "doc": r.doc} for r in _method_rules()
-    ]
+    ctx["rules"] = [{"id": r.id, "scope": r.scope, "doc": r.doc} for r in _method_rules()]
     return Page(path, "rules.html", ctx)
 
 
@@ -1107,4 +1129,3 @@ def quality_page(
     ctx["methods"] = rows
     ctx["excluded"] = [{"id": mid, "reason": reason} for mid, reason in sorted(options.excluded)]
     return Page(path, "quality.html", ctx)
-

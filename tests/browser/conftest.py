@@ -61,7 +61,7 @@ def build_into(source: Path, out: Path) -> Path:
 
 
 class _Quiet(SimpleHTTPRequestHandler):
-    def log_message(self, format, *args):  # noqa: A002 - keep pytest output clean
+    def log_message(self, format, *args):
         pass
 
 

@@ -20,7 +20,9 @@ def _status(col, status):
 def test_home_lists_approved_not_retired(page, base_url, demo_collection, artifacts):
     col, _ = demo_collection
     page.goto(base_url + "index.html")
-    hrefs = page.eval_on_selector_all("#approved ~ .analyte-group a", "els => els.map(e => e.getAttribute('href'))")
+    hrefs = page.eval_on_selector_all(
+        "#approved ~ .analyte-group a", "els => els.map(e => e.getAttribute('href'))"
+    )
     for mid in _status(col, "approved"):
         assert f"methods/{mid}/index.html" in hrefs
     everything = page.eval_on_selector_all("main a", "els => els.map(e => e.getAttribute('href'))")
@@ -66,7 +68,6 @@ def test_search_by_reagent_name_and_keyboard(page, base_url, demo_collection):
 
 
 def test_method_page_curve_and_hazards_first(page, base_url, demo_collection, artifacts):
-    col, analyses = demo_collection
     mid = "iron-ii-ceric"
     page.goto(base_url + f"methods/{mid}/index.html")
     svg = page.locator("figure.plot svg[role=img]")
@@ -144,7 +145,8 @@ def test_bench_sheet_prints_on_a4_and_letter(page, base_url, paper):
     page.set_viewport_size({"width": 680, "height": 900})
     assert page.evaluate("document.documentElement.scrollWidth") <= 680
     order = page.evaluate(
-        "() => [...document.querySelectorAll('section')].map(s => s.getAttribute('aria-labelledby'))"
+        "() => [...document.querySelectorAll('section')]"
+        ".map(s => s.getAttribute('aria-labelledby'))"
     )
     assert order[0] == "hazards"
     assert {"sample", "readings", "result", "sign"} <= set(order)
@@ -169,8 +171,13 @@ def _axe(page):
 
 
 @pytest.mark.parametrize(
-    "path", ["index.html", "methods/iron-ii-ceric/index.html", "reagents/cerium-iv-sulfate/index.html",
-             "methods/iron-ii-ceric/bench.html"]
+    "path",
+    [
+        "index.html",
+        "methods/iron-ii-ceric/index.html",
+        "reagents/cerium-iv-sulfate/index.html",
+        "methods/iron-ii-ceric/bench.html",
+    ],
 )
 def test_accessibility_audit(page, base_url, path):
     page.goto(base_url + path)
@@ -188,7 +195,7 @@ def test_record_text_never_runs(browser, serve, source_copy, tmp_path, build):
     rec = rec.replace(
         "procedure: |\n",
         "procedure: |\n  Go [here](javascript:window.pwned=2) or <script>window.pwned=3</script>"
-        " <img src=x onerror=\"window.pwned=4\">\n\n",
+        ' <img src=x onerror="window.pwned=4">\n\n',
     )
     rec_path.write_text(rec)
     url = serve(build(source_copy, tmp_path / "out"))
@@ -231,7 +238,9 @@ def test_readable_without_javascript(browser, base_url, demo_collection):
     ctx = browser.new_context(java_script_enabled=False)
     pg = ctx.new_page()
     pg.goto(base_url + "index.html")
-    assert pg.locator(".analyte-group .method-item:visible").count() == len(_status(col, "approved"))
+    assert pg.locator(".analyte-group .method-item:visible").count() == len(
+        _status(col, "approved")
+    )
     assert not pg.locator(".filters").is_visible()
     assert "needs JavaScript" in pg.inner_text("#search-count")
     pg.goto(base_url + "methods/iron-ii-ceric/index.html")

@@ -76,16 +76,24 @@ def test_cycle_through_a_successor_link(tmp_path):
     base = (root / "records" / "iron-permanganate.yaml").read_text()
     (root / "records" / "iron-permanganate.yaml").unlink()
     a = base.replace("id: iron-permanganate", "id: a").replace(
-        "status: approved\n", "status: approved\nsupersedes: [b]\n")
-    b = base.replace("id: iron-permanganate", "id: b").replace(
-        "status: approved\n", "status: retired\nsuccessor: a\n").replace(
-        "approval:\n  approved_by: Fixture approver\n  approved_on: 2026-01-10\n"
-        "  review_due: 2027-01-10\n", "")
+        "status: approved\n", "status: approved\nsupersedes: [b]\n"
+    )
+    b = (
+        base.replace("id: iron-permanganate", "id: b")
+        .replace("status: approved\n", "status: retired\nsuccessor: a\n")
+        .replace(
+            "approval:\n  approved_by: Fixture approver\n  approved_on: 2026-01-10\n"
+            "  review_due: 2027-01-10\n",
+            "",
+        )
+    )
     (root / "records" / "a.yaml").write_text(a)
     (root / "records" / "b.yaml").write_text(b)
     _, findings = fx.run_ours(root)
     assert findings == []
-    (root / "records" / "b.yaml").write_text(b.replace("successor: a\n", "successor: a\nsupersedes: [a]\n"))
+    (root / "records" / "b.yaml").write_text(
+        b.replace("successor: a\n", "successor: a\nsupersedes: [a]\n")
+    )
     _, findings = fx.run_ours(root)
     assert [(f.rule, f.span.path) for f in findings] == [("supersedes-cycle", "records/a.yaml")]
 
@@ -93,7 +101,11 @@ def test_cycle_through_a_successor_link(tmp_path):
 def test_self_supersession_is_a_cycle(tmp_path):
     root = fx.build_case(None, tmp_path / "src")
     p = root / "records" / "iron-permanganate.yaml"
-    p.write_text(p.read_text().replace("status: approved\n", "status: approved\nsupersedes: [iron-permanganate]\n"))
+    p.write_text(
+        p.read_text().replace(
+            "status: approved\n", "status: approved\nsupersedes: [iron-permanganate]\n"
+        )
+    )
     _, findings = fx.run_ours(root)
     assert [f.rule for f in findings] == ["supersedes-cycle"]
     assert findings[0].span.line == 5

@@ -10,7 +10,7 @@ from fixture_util import CASES, DEMO, OUR_RULES, build_case, run_ours
 
 from sitegen.check.registry import RULES, Settings
 from sitegen.check.run import run_rules
-from sitegen.errors import Severity, format_finding
+from sitegen.errors import format_finding
 from sitegen.load.collection import load_collection
 
 HAZARD_CASES = [
@@ -30,9 +30,14 @@ HAZARD_RULES = [r for r in OUR_RULES if RULES[r].func.__module__.endswith(".haza
 def test_rule_ids_registered():
     assert set(OUR_RULES) <= set(RULES)
     assert set(HAZARD_RULES) == {
-        "unknown-hazard-code", "withdrawn-hazard-code", "unknown-pictogram",
-        "signal-word-mismatch", "pictogram-mismatch", "missing-classification",
-        "safety-rule", "bad-safety-rule",
+        "unknown-hazard-code",
+        "withdrawn-hazard-code",
+        "unknown-pictogram",
+        "signal-word-mismatch",
+        "pictogram-mismatch",
+        "missing-classification",
+        "safety-rule",
+        "bad-safety-rule",
     }
     for rid in OUR_RULES:
         assert RULES[rid].doc, rid  # the docstring is the user-facing text
@@ -61,7 +66,8 @@ def test_preventive_reagent_silences_the_chloride_rule(tmp_path):
     text = rec.read_text()
     fixed = text.replace(
         "  - {ref: hydrochloric-acid, role: acid}",
-        "  - {ref: hydrochloric-acid, role: acid}\n  - {ref: zimmermann-reinhardt, role: preventive}",
+        "  - {ref: hydrochloric-acid, role: acid}\n"
+        "  - {ref: zimmermann-reinhardt, role: preventive}",
     )
     assert fixed != text
     rec.write_text(fixed)
@@ -72,9 +78,15 @@ def test_preventive_reagent_silences_the_chloride_rule(tmp_path):
 def test_draft_method_needs_no_classification(tmp_path):
     root = build_case("missing-classification", tmp_path / "src")
     rec = root / "records" / "uses-unclassified.yaml"
-    rec.write_text(rec.read_text().replace("status: approved", "status: draft").replace(
-        "approval:\n  approved_by: Fixture approver\n  approved_on: 2026-01-10\n"
-        "  review_due: 2027-01-10\n", ""))
+    rec.write_text(
+        rec.read_text()
+        .replace("status: approved", "status: draft")
+        .replace(
+            "approval:\n  approved_by: Fixture approver\n  approved_on: 2026-01-10\n"
+            "  review_due: 2027-01-10\n",
+            "",
+        )
+    )
     _, findings = run_ours(root)
     assert "missing-classification" not in {f.rule for f in findings}
 

@@ -104,8 +104,11 @@ def test_chromium_rule_names_the_alternative_and_is_quieted_by_a_caution(base):
         update={"id": "potassium-dichromate", "formula": "K2Cr2O7", "supplies": "Cr2O7^2-"}
     )
     rg2 = {**rg, "potassium-dichromate": dichromate}
-    r = with_(rec, reagents=[ReagentUse(ref="potassium-dichromate", role=Role.TITRANT)],
-              alternative="iron-permanganate")
+    r = with_(
+        rec,
+        reagents=[ReagentUse(ref="potassium-dichromate", role=Role.TITRANT)],
+        alternative="iron-permanganate",
+    )
     t = {t.rule.id: t for t in evaluate(r, rg2)}["chromium-vi-reagent"]
     assert t.reports and "The record names an alternative: iron-permanganate." in t.message
     r2 = with_(r, safety=["Reduce all dichromate waste to Cr(III) with iron(II) before disposal."])
@@ -115,12 +118,19 @@ def test_chromium_rule_names_the_alternative_and_is_quieted_by_a_caution(base):
 
 @pytest.mark.parametrize(
     ("formula", "rule_id"),
-    [("HgCl2", "mercury-ii-salt"), ("As2O3", "arsenic-compound"), ("HClO4", "perchloric-acid-concentrated"),
-     ("I2", "iodine-vapour"), ("NaOCl", "hypochlorite-acidified")],
+    [
+        ("HgCl2", "mercury-ii-salt"),
+        ("As2O3", "arsenic-compound"),
+        ("HClO4", "perchloric-acid-concentrated"),
+        ("I2", "iodine-vapour"),
+        ("NaOCl", "hypochlorite-acidified"),
+    ],
 )
 def test_each_element_rule_fires_on_its_reagent(base, formula, rule_id):
     rec, rg = base
-    extra = rg["iron-ii-salt"].model_copy(update={"id": "extra", "formula": formula, "supplies": None})
+    extra = rg["iron-ii-salt"].model_copy(
+        update={"id": "extra", "formula": formula, "supplies": None}
+    )
     r = with_(rec, reagents=[*rec.reagents, ReagentUse(ref="extra", role=Role.AUXILIARY)])
     assert rule_id in ids(evaluate(r, {**rg, "extra": extra}))
     assert rule_id not in ids(evaluate(rec, rg))
@@ -167,12 +177,27 @@ def test_malformed_lab_file_gives_positions():
     [
         ("rules: [1, 2\n", 2, 1, "malformed YAML"),
         ("other: []\n", 1, 1, "one key, 'rules'"),
-        ("rules:\n  - {id: a, severity: error, when: {colour: red}, message: m, caution: c,"
-         " source: s}\n", 2, 37, "unknown condition 'colour'"),
-        ("rules:\n  - {id: a, severity: error, when: {all: []}, message: m, caution: c,"
-         " source: s}\n", 2, 42, "non-empty list"),
-        ("rules:\n  - {id: a, severity: error, when: {medium: x}, message: m, caution: c,"
-         " source: s, colour: red}\n", 2, 84, "unknown key 'colour'"),
+        (
+            "rules:\n  - {id: a, severity: error, when: {colour: red}, message: m, caution: c,"
+            " source: s}\n",
+            2,
+            37,
+            "unknown condition 'colour'",
+        ),
+        (
+            "rules:\n  - {id: a, severity: error, when: {all: []}, message: m, caution: c,"
+            " source: s}\n",
+            2,
+            42,
+            "non-empty list",
+        ),
+        (
+            "rules:\n  - {id: a, severity: error, when: {medium: x}, message: m, caution: c,"
+            " source: s, colour: red}\n",
+            2,
+            84,
+            "unknown key 'colour'",
+        ),
     ],
 )
 def test_malformed_variants(text, line, col, fragment):

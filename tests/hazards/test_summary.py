@@ -23,11 +23,18 @@ def test_union_in_canonical_order(base):
     assert [c for c, _ in s.hazard_statements] == ["H272", "H290", "H302", "H314", "H410"]
     assert dict(s.hazard_statements)["H314"] == "Causes severe skin burns and eye damage."
     assert [c for c, _ in s.precautionary] == [
-        "P210", "P273", "P280", "P301+P330+P331", "P303+P361+P353", "P305+P351+P338"
+        "P210",
+        "P273",
+        "P280",
+        "P301+P330+P331",
+        "P303+P361+P353",
+        "P305+P351+P338",
     ]
     assert s.pictograms == (
-        ("GHS03", "flame over circle"), ("GHS05", "corrosion"),
-        ("GHS07", "exclamation mark"), ("GHS09", "environment"),
+        ("GHS03", "flame over circle"),
+        ("GHS05", "corrosion"),
+        ("GHS07", "exclamation mark"),
+        ("GHS09", "environment"),
     )
     assert s.ppe == ("acid-resistant gloves", "nitrile gloves", "safety goggles")
     assert [r.id for r in s.per_reagent] == ["potassium-permanganate", "sulfuric-acid"]
@@ -35,7 +42,9 @@ def test_union_in_canonical_order(base):
 
 def test_signal_word_is_the_strongest(base):
     rec, rg = base
-    warn_only = rec.model_copy(update={"reagents": [ReagentUse(ref="iron-ii-salt", role=Role.REDUCTANT)]})
+    warn_only = rec.model_copy(
+        update={"reagents": [ReagentUse(ref="iron-ii-salt", role=Role.REDUCTANT)]}
+    )
     assert method_hazards(warn_only, rg).signal_word == "Warning"
     both = rec.model_copy(update={"reagents": [*warn_only.reagents, *rec.reagents]})
     assert method_hazards(both, rg).signal_word == "Danger"
@@ -59,14 +68,26 @@ def test_cautions_are_the_records_then_the_rules(base):
 def test_unclassified_and_unknown_codes_still_render(base):
     rec, rg = base
     odd = rg["iron-ii-salt"].model_copy(
-        update={"id": "odd", "hazards": HazardData(
-            signal_word="Warning", hazard_statements=["H999", "h302"],
-            precautionary_statements=["P304+P340+P310"], source="x")}
+        update={
+            "id": "odd",
+            "hazards": HazardData(
+                signal_word="Warning",
+                hazard_statements=["H999", "h302"],
+                precautionary_statements=["P304+P340+P310"],
+                source="x",
+            ),
+        }
     )
     bare = rg["iron-ii-salt"].model_copy(update={"id": "bare", "hazards": None})
-    r = rec.model_copy(update={"reagents": [ReagentUse(ref="odd", role=Role.AUXILIARY),
-                                            ReagentUse(ref="bare", role=Role.AUXILIARY),
-                                            ReagentUse(ref="gone", role=Role.AUXILIARY)]})
+    r = rec.model_copy(
+        update={
+            "reagents": [
+                ReagentUse(ref="odd", role=Role.AUXILIARY),
+                ReagentUse(ref="bare", role=Role.AUXILIARY),
+                ReagentUse(ref="gone", role=Role.AUXILIARY),
+            ]
+        }
+    )
     s = method_hazards(r, {"odd": odd, "bare": bare})
     assert s.hazard_statements == (("H302", "Harmful if swallowed."), ("H999", UNKNOWN_TEXT))
     assert s.precautionary[0][1].startswith("IF INHALED: Remove person to fresh air")

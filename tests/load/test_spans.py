@@ -1,9 +1,8 @@
 """The YAML reader keeps positions and refuses what would lose or explode data."""
 
-import pytest
-
 from pathlib import Path
 
+import pytest
 import yaml
 
 from sitegen.load import spans

@@ -20,7 +20,10 @@ from sitegen.render.chemtext import reaction_html, species_html
         ("e-", "e<sup>\u2212</sup>"),
         ("I3-", "I<sub>3</sub><sup>\u2212</sup>"),
         ("FeSO4·7H2O", "FeSO<sub>4</sub>·7H<sub>2</sub>O"),
-        ("(NH4)2Fe(SO4)2·6H2O", "(NH<sub>4</sub>)<sub>2</sub>Fe(SO<sub>4</sub>)<sub>2</sub>·6H<sub>2</sub>O"),
+        (
+            "(NH4)2Fe(SO4)2·6H2O",
+            "(NH<sub>4</sub>)<sub>2</sub>Fe(SO<sub>4</sub>)<sub>2</sub>·6H<sub>2</sub>O",
+        ),
         ("Fe^2+(aq)", "Fe<sup>2+</sup>(aq)"),
         ("H2O", "H<sub>2</sub>O"),
     ],

@@ -36,17 +36,35 @@ def test_method_json_fields(demo):
     a = analyses["iron-ii-ceric"]
     f = Finding("x-rule", Severity.WARNING, "msg", Span(lo.source.path, 3, 4))
     data = json.loads(method_json(lo, a, [f]))
-    for key in ("equivalence_volume_mL", "equivalence_potential_V_vs_SHE", "log10_K", "factor",
-                "indicator_error_percent", "result", "expanded_uncertainty", "findings", "id",
-                "revision", "fingerprint", "reference_electrode", "curve_note"):
+    for key in (
+        "equivalence_volume_mL",
+        "equivalence_potential_V_vs_SHE",
+        "log10_K",
+        "factor",
+        "indicator_error_percent",
+        "result",
+        "expanded_uncertainty",
+        "findings",
+        "id",
+        "revision",
+        "fingerprint",
+        "reference_electrode",
+        "curve_note",
+    ):
         assert key in data
     assert data["fingerprint"] == lo.source.fingerprint and len(data["fingerprint"]) == 12
     assert data["factor"] == float(a.result.factor)
     assert data["result"]["unit"] == "g/L"
     assert abs(data["result"]["value"] - a.result.value) < 1e-9
     assert data["findings"] == [
-        {"file": lo.source.path, "line": 3, "column": 4, "rule": "x-rule", "severity": "warning",
-         "message": "msg"}
+        {
+            "file": lo.source.path,
+            "line": 3,
+            "column": 4,
+            "rule": "x-rule",
+            "severity": "warning",
+            "message": "msg",
+        }
     ]
 
 
@@ -68,4 +86,6 @@ def test_indicator_error_null_for_non_redox(demo):
 def test_json_is_deterministic(demo):
     col, analyses = demo
     lo = col.methods["iron-ii-ceric"]
-    assert method_json(lo, analyses["iron-ii-ceric"], []) == method_json(lo, analyses["iron-ii-ceric"], [])
+    assert method_json(lo, analyses["iron-ii-ceric"], []) == method_json(
+        lo, analyses["iron-ii-ceric"], []
+    )

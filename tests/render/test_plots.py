@@ -13,20 +13,33 @@ from sitegen.render.plots import curve_key, curve_svg
 def _curve(note=None, nan=False):
     v = np.linspace(0.0, 40.0, 81)
     veq = 20.0
-    e = np.where(v < veq, 0.68 + 0.0592 * np.log10(np.clip(v, 0.1, None) / np.clip(veq - v, 0.1, None)),
-                 1.44 + 0.0592 * np.log10(np.clip(v - veq, 0.1, None) / veq))
+    e = np.where(
+        v < veq,
+        0.68 + 0.0592 * np.log10(np.clip(v, 0.1, None) / np.clip(veq - v, 0.1, None)),
+        1.44 + 0.0592 * np.log10(np.clip(v - veq, 0.1, None) / veq),
+    )
     if nan:
         e = e.copy()
         e[(v > veq) & (v < veq + 8)] = np.nan
     return CurveInfo(
-        volumes_mL=v, E_vs_SHE=e, E_vs_ref=e - 0.241, reference="SCE",
-        reference_name="saturated calomel electrode", equivalence_volume_mL=veq,
-        equivalence_potential_V=1.06, equivalence_potential_ref_V=0.819, break_V=0.4,
-        note=note, titrand_mmol=2.0, assumption="test",
+        volumes_mL=v,
+        E_vs_SHE=e,
+        E_vs_ref=e - 0.241,
+        reference="SCE",
+        reference_name="saturated calomel electrode",
+        equivalence_volume_mL=veq,
+        equivalence_potential_V=1.06,
+        equivalence_potential_ref_V=0.819,
+        break_V=0.4,
+        note=note,
+        titrand_mmol=2.0,
+        assumption="test",
     )
 
 
-IND = IndicatorInfo("ferroin", "Ferroin", "redox", 1.147, (1.088, 1.206), (0.847, 0.965), 0.01, True, None)
+IND = IndicatorInfo(
+    "ferroin", "Ferroin", "redox", 1.147, (1.088, 1.206), (0.847, 0.965), 0.01, True, None
+)
 
 
 def test_byte_identical_across_calls():
@@ -89,9 +102,23 @@ def _variants():
         ("band", c, IND),
         ("no indicator", c, None),
         ("gap", _curve(note="no response", nan=True), IND),
-        ("no equivalence potential", CurveInfo(**{**c.__dict__, "equivalence_potential_ref_V": None}), None),
-        ("other range", CurveInfo(**{**c.__dict__, "volumes_mL": c.volumes_mL * 2.5,
-                                      "E_vs_ref": c.E_vs_ref - 0.9, "reference": "Ag/AgCl-sat"}), IND),
+        (
+            "no equivalence potential",
+            CurveInfo(**{**c.__dict__, "equivalence_potential_ref_V": None}),
+            None,
+        ),
+        (
+            "other range",
+            CurveInfo(
+                **{
+                    **c.__dict__,
+                    "volumes_mL": c.volumes_mL * 2.5,
+                    "E_vs_ref": c.E_vs_ref - 0.9,
+                    "reference": "Ag/AgCl-sat",
+                }
+            ),
+            IND,
+        ),
     ]
 
 
@@ -140,9 +167,12 @@ def test_kept_drawings_give_the_same_figure_and_differ_when_the_curve_does():
     # anything drawn changes the key: the points, the band, the reference
     shifted = dataclasses.replace(_curve(), E_vs_ref=_curve().E_vs_ref + 0.001)
     other_ref = dataclasses.replace(_curve(), reference="Ag/AgCl")
-    keys = {plots.drawing_key(c, i) for c, i in
-            [(_curve(), IND), (shifted, IND), (_curve(), None), (other_ref, IND)]}
+    keys = {
+        plots.drawing_key(c, i)
+        for c, i in [(_curve(), IND), (shifted, IND), (_curve(), None), (other_ref, IND)]
+    }
     assert len(keys) == 4
     assert curve_svg(shifted, IND, "Iron", prefix="p", drawings=store) == curve_svg(
-        shifted, IND, "Iron", prefix="p")
+        shifted, IND, "Iron", prefix="p"
+    )
     assert len(store) == 2

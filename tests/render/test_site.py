@@ -11,12 +11,11 @@ from types import SimpleNamespace
 
 import pytest
 
+from sitegen.analyse import analyse_method
 from sitegen.errors import Finding, Severity, Span
 from sitegen.load.collection import load_collection
 from sitegen.render.links import check_links, page_ids
 from sitegen.render.site import render_method_files, render_site
-
-from sitegen.analyse import analyse_method
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "methods"
@@ -24,7 +23,9 @@ THEME = ROOT / "theme"
 
 
 def analyse_all(col):
-    return {k: analyse_method(v, col.reagents, col.indicators) for k, v in sorted(col.methods.items())}
+    return {
+        k: analyse_method(v, col.reagents, col.indicators) for k, v in sorted(col.methods.items())
+    }
 
 
 @pytest.fixture(scope="module")
@@ -52,8 +53,17 @@ def test_render_is_deterministic(demo, options):
 
 def test_expected_files(site, demo):
     col, analyses = demo
-    for key in ("index.html", "archive.html", "glossary.html", "quality.html", "rules.html",
-                "search-index.json", "search-index.js", "static/site.css", "static/search.js"):
+    for key in (
+        "index.html",
+        "archive.html",
+        "glossary.html",
+        "quality.html",
+        "rules.html",
+        "search-index.json",
+        "search-index.js",
+        "static/site.css",
+        "static/search.js",
+    ):
         assert key in site
     for mid in col.methods:
         assert f"methods/{mid}/index.html" in site
@@ -88,8 +98,17 @@ def test_method_page_order_and_footer(site, demo):
     col, _ = demo
     for mid, lo in col.methods.items():
         page = site[f"methods/{mid}/index.html"].decode()
-        order = [page.index(s) for s in ('id="hazards"', 'id="scope"', 'id="procedure"',
-                                          'id="calculation"', 'id="checks"', 'id="history"')]
+        order = [
+            page.index(s)
+            for s in (
+                'id="hazards"',
+                'id="scope"',
+                'id="procedure"',
+                'id="calculation"',
+                'id="checks"',
+                'id="history"',
+            )
+        ]
         assert order == sorted(order), mid
         assert page.index("<h1>") < page.index('id="hazards"')
         assert "take precedence over this page" in page
@@ -102,7 +121,7 @@ def test_method_page_order_and_footer(site, demo):
 
 
 def test_calculator_island_matches_build(site, demo):
-    col, analyses = demo
+    _col, analyses = demo
     a = analyses["iron-ii-ceric"]
     page = site["methods/iron-ii-ceric/index.html"].decode()
     m = re.search(r'<script type="application/json" class="calc-data">(.*?)</script>', page, re.S)
@@ -118,7 +137,9 @@ def test_review_overdue_banner(demo, options):
     due = col.methods[mid].record.approval.review_due
     late = dataclasses.replace(options, build_date=due.replace(year=due.year + 1))
     early = dataclasses.replace(options, build_date=due)
-    page = lambda o: render_method_files(mid, col, analyses[mid], [], o)[f"methods/{mid}/index.html"]  # noqa: E731
+    def page(o):
+        return render_method_files(mid, col, analyses[mid], [], o)[f"methods/{mid}/index.html"]
+
     assert b"Review overdue" in page(late)
     assert b"Review overdue" not in page(early)
 
@@ -126,7 +147,9 @@ def test_review_overdue_banner(demo, options):
 def test_findings_are_shown_and_exported(demo, options):
     col, analyses = demo
     lo = col.methods["iron-ii-ceric"]
-    f = Finding("factor-mismatch", Severity.ERROR, "stated 2, derived 1", Span(lo.source.path, 40, 3))
+    f = Finding(
+        "factor-mismatch", Severity.ERROR, "stated 2, derived 1", Span(lo.source.path, 40, 3)
+    )
     files = render_site(col, analyses, [f], options)
     page = files["methods/iron-ii-ceric/index.html"].decode()
     assert "stated 2, derived 1" in page and "result-fail" in page
@@ -155,10 +178,19 @@ def test_missing_analysis_still_renders(demo, options):
 def test_budget_table(demo, options):
     col, analyses = demo
     a = analyses["iron-ii-ceric"]
-    c = SimpleNamespace(name="titrant volume", value=31.2, u=0.02, unit="mL", sensitivity=0.56,
-                        contribution=0.011, share=0.4)
+    c = SimpleNamespace(
+        name="titrant volume",
+        value=31.2,
+        u=0.02,
+        unit="mL",
+        sensitivity=0.56,
+        contribution=0.011,
+        share=0.4,
+    )
     bud = SimpleNamespace(value=17.4213, u_c=0.031, k=2, U=0.062, unit="g/L", contributions=(c,))
-    files = render_method_files("iron-ii-ceric", col, dataclasses.replace(a, budget=bud), [], options)
+    files = render_method_files(
+        "iron-ii-ceric", col, dataclasses.replace(a, budget=bud), [], options
+    )
     page = files["methods/iron-ii-ceric/index.html"].decode()
     assert "Uncertainty budget" in page and "titrant volume" in page
     assert "17.421 ± 0.062" in page and "k = 2" in page
@@ -178,9 +210,14 @@ def test_record_text_cannot_inject(tmp_path, options):
     src = tmp_path / "src"
     shutil.copytree(DEMO, src)
     rec = (src / "records" / "iron-ii-ceric.yaml").read_text()
-    rec = rec.replace("title: Iron(II) in pickling bath samples by cerium(IV)",
-                      'title: "Iron <script>window.pwned=1</script> test"')
-    rec = rec.replace("procedure: |\n", "procedure: |\n  Click [here](javascript:alert(1)) <img src=x onerror=alert(1)>\n")
+    rec = rec.replace(
+        "title: Iron(II) in pickling bath samples by cerium(IV)",
+        'title: "Iron <script>window.pwned=1</script> test"',
+    )
+    rec = rec.replace(
+        "procedure: |\n",
+        "procedure: |\n  Click [here](javascript:alert(1)) <img src=x onerror=alert(1)>\n",
+    )
     (src / "records" / "iron-ii-ceric.yaml").write_text(rec)
     col = load_collection(src, cwd=ROOT)
     assert "iron-ii-ceric" in col.methods
@@ -190,7 +227,9 @@ def test_record_text_cannot_inject(tmp_path, options):
             assert b"<script>window.pwned" not in data, path
             assert not re.search(rb"(href|src)\s*=\s*\"?\s*javascript:", data, re.I), path
             assert b"<img src=x" not in data, path
-    assert b"&lt;script&gt;window.pwned=1&lt;/script&gt;" in files["methods/iron-ii-ceric/index.html"]
+    assert (
+        b"&lt;script&gt;window.pwned=1&lt;/script&gt;" in files["methods/iron-ii-ceric/index.html"]
+    )
     index = json.loads(files["search-index.json"])
     assert any("<script>" in d["title"] for d in index["documents"])  # data, shown via textContent
 
@@ -199,7 +238,10 @@ def test_search_index_content(site, demo):
     col, _ = demo
     data = json.loads(site["search-index.json"])
     js = site["search-index.js"].decode()
-    assert js.startswith("window.SITEGEN_SEARCH = ") and json.loads(js[len("window.SITEGEN_SEARCH = "):-2]) == data
+    assert (
+        js.startswith("window.SITEGEN_SEARCH = ")
+        and json.loads(js[len("window.SITEGEN_SEARCH = ") : -2]) == data
+    )
     docs = {d["id"]: d for d in data["documents"]}
     for mid, lo in col.methods.items():
         rec = lo.record

@@ -2,7 +2,10 @@
 
 from sitegen.render.text import glossary_anchor, markdown_html, markdown_text
 
-GLOSS = {"end point": "../../glossary.html#term-end-point", "blank": "../../glossary.html#term-blank"}
+GLOSS = {
+    "end point": "../../glossary.html#term-end-point",
+    "blank": "../../glossary.html#term-blank",
+}
 
 
 def test_raw_html_is_escaped():
@@ -12,8 +15,12 @@ def test_raw_html_is_escaped():
 
 
 def test_javascript_links_are_not_links():
-    for text in ("[x](javascript:alert(1))", "[x](JaVaScRiPt:alert(1))", "<javascript:alert(1)>",
-                 "[x](vbscript:msgbox(1))"):
+    for text in (
+        "[x](javascript:alert(1))",
+        "[x](JaVaScRiPt:alert(1))",
+        "<javascript:alert(1)>",
+        "[x](vbscript:msgbox(1))",
+    ):
         out = markdown_html(text)
         assert "href" not in out, out
 
@@ -49,4 +56,6 @@ def test_glossary_text_cannot_inject_markup():
 
 def test_anchor_and_plain_text():
     assert glossary_anchor("Half-reaction") == "term-half-reaction"
-    assert markdown_text("1. Add **20 mL** of `acid`.\n2. Titrate.") == "Add 20 mL of acid . Titrate."
+    assert (
+        markdown_text("1. Add **20 mL** of `acid`.\n2. Titrate.") == "Add 20 mL of acid . Titrate."
+    )
