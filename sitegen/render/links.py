@@ -18,7 +18,7 @@ from __future__ import annotations
 __all__ = ["PageLinks", "check_links", "check_summaries", "page_ids", "page_links"]
 
 import posixpath
-from collections.abc import Iterable, Mapping
+from collections.abc import Iterable, Iterator, Mapping
 from urllib.parse import unquote, urlsplit
 
 #: (sorted element ids, sorted distinct link targets) of one page
@@ -88,6 +88,28 @@ def _why_broken(page: str, href: str, names: set[str],
     return None
 
 
+class _Ids(Mapping[str, frozenset[str]]):
+    """Page -> its element ids, each set made when a link first points into
+    that page (a build that checks a few changed pages would otherwise make
+    one for every page of the site)."""
+
+    def __init__(self, summaries: Mapping[str, PageLinks]) -> None:
+        self._summaries = summaries
+        self._made: dict[str, frozenset[str]] = {}
+
+    def __getitem__(self, page: str) -> frozenset[str]:
+        made = self._made.get(page)
+        if made is None:
+            made = self._made[page] = frozenset(self._summaries[page][0])
+        return made
+
+    def __iter__(self) -> Iterator[str]:
+        return iter(self._summaries)
+
+    def __len__(self) -> int:
+        return len(self._summaries)
+
+
 def check_summaries(
     summaries: Mapping[str, PageLinks], names: Iterable[str], pages: Iterable[str] | None = None
 ) -> list[tuple[str, str, str]]:
@@ -102,7 +124,7 @@ def check_summaries(
         Sorted ``(page, href, reason)`` triples.
     """
     name_set = set(names)
-    ids = {p: frozenset(s[0]) for p, s in summaries.items()}
+    ids = _Ids(summaries)
     broken = set()
     for page in sorted(summaries if pages is None else pages):
         for href in summaries[page][1]:
