@@ -30,14 +30,9 @@ HAZARD_RULES = [r for r in OUR_RULES if RULES[r].func.__module__.endswith(".haza
 def test_rule_ids_registered():
     assert set(OUR_RULES) <= set(RULES)
     assert set(HAZARD_RULES) == {
-        "unknown-hazard-code",
-        "withdrawn-hazard-code",
-        "unknown-pictogram",
-        "signal-word-mismatch",
-        "pictogram-mismatch",
-        "missing-classification",
-        "safety-rule",
-        "bad-safety-rule",
+        "unknown-hazard-code", "withdrawn-hazard-code", "unknown-pictogram",
+        "signal-word-mismatch", "pictogram-mismatch", "missing-classification",
+        "safety-rule", "bad-safety-rule",
     }
     for rid in OUR_RULES:
         assert RULES[rid].doc, rid  # the docstring is the user-facing text
