@@ -272,10 +272,6 @@ def main(
         return 1
 
 
-if __name__ == "__main__":
-    sys.exit(main())
-
-
 def leave(code: int) -> NoReturn:
     """End the process with ``code``: flush the standard streams, run the
     exit handlers, and skip freeing every object one by one, which for a
@@ -295,3 +291,7 @@ def leave(code: int) -> NoReturn:
 def run() -> NoReturn:
     """The ``sitegen`` command: :func:`main`, then :func:`leave`."""
     leave(main())
+
+
+if __name__ == "__main__":
+    run()

@@ -567,8 +567,8 @@ def _start(s: _System) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArra
     # the exact solver extra passes over the few points right at equivalence.
     with np.errstate(invalid="ignore"):
         near = np.flatnonzero(np.fmax(s.gap_q, s.gap_p) < _LN_NEAR)
+    bq = aq / rq
     if near.size <= _FEW:
-        bq = aq / rq
         for i in near.tolist():
             u = _polish_one(
                 float(s.base_p[i] + s.beta_p[i]), float(s.base_q[i] - s.beta_q[i] / rq),
@@ -577,7 +577,6 @@ def _start(s: _System) -> tuple[NDArray[np.float64], NDArray[np.float64], NDArra
             if math.isfinite(u):
                 E[i] = min(max(u, lo[i]), hi[i])
     else:
-        bq = aq / rq
         Lp = s.base_p[near] + s.beta_p[near]
         Lq = s.base_q[near] - s.beta_q[near] / rq
         Cp, Cn = s.lnC_pos[near], s.lnC_neg[near]
